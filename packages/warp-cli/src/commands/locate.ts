@@ -1,0 +1,39 @@
+/** `skyfold locate`: the inverse of probe — which projector pixel lights a dome direction. */
+import type { Command } from 'commander';
+import { DEG, locateDirection, Tracer } from '@skyfold/warp-core';
+import { loadRig } from '../document-file.js';
+import { fixed, printJson, table } from '../format.js';
+import { collect, parseNumberPair } from '../options.js';
+import { warn } from '../messages.js';
+import { InvalidArgumentError } from 'commander';
+
+function parseDirection(s: string): [number, number] {
+  const [az, alt] = parseNumberPair(s, 'AZ,ALT (azimuth and altitude in degrees)');
+  if (alt < -90 || alt > 90) throw new InvalidArgumentError(`expected an altitude from -90 to 90 degrees, got "${s}"`);
+  return [az, alt];
+}
+
+export function registerLocate(program: Command): void {
+  program
+    .command('locate')
+    .description('find the projector pixel that lights a dome direction (azimuth, altitude in degrees from the content eye)')
+    .argument('<rig>', 'rig file (YAML or JSON)')
+    .requiredOption('--direction <az,alt>', 'dome direction in degrees (repeatable): azimuth 0 = front, 90 = right; altitude 0 = springline, 90 = zenith', collect(parseDirection))
+    .option('--json', 'machine-readable output')
+    .addHelpText('after', '\nExamples:\n  skyfold locate rig.yaml --direction 0,90\n  skyfold locate rig.yaml --direction 0,30 --direction 90,30 --json')
+    .action((rigPath: string, opts: { direction: [number, number][]; json?: boolean }) => {
+      const { rig, warnings } = loadRig(rigPath);
+      warnings.forEach(warn);
+      const tracer = new Tracer(rig);
+      const results = opts.direction.map(([az, alt]) => {
+        const r = locateDirection(tracer, az * DEG, alt * DEG);
+        return r.pixel ? { azimuth: az, altitude: alt, pixel: r.pixel } : { azimuth: az, altitude: alt, pixel: null, reason: r.reason };
+      });
+      if (opts.json) {
+        printJson({ results });
+        return;
+      }
+      const rows = results.map((r) => [fixed(r.azimuth, 3), fixed(r.altitude, 3), r.pixel ? `${fixed(r.pixel[0], 3)}, ${fixed(r.pixel[1], 3)}` : '-', 'reason' in r ? String(r.reason) : '']);
+      process.stdout.write(table(['azimuth', 'altitude', 'projector pixel x, y', 'note'], rows) + '\n');
+    });
+}

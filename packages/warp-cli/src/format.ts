@@ -1,0 +1,16 @@
+/** Plain-text tables and numbers for people; JSON output goes straight through JSON.stringify. */
+
+export function table(header: string[], rows: string[][]): string {
+  const widths = header.map((h, i) => Math.max(h.length, ...rows.map((r) => (r[i] ?? '').length)));
+  const line = (cells: string[]) => cells.map((c, i) => c.padEnd(widths[i])).join('  ').trimEnd();
+  return [line(header), line(widths.map((w) => '-'.repeat(w))), ...rows.map(line)].join('\n');
+}
+
+export function fixed(x: number, digits: number): string {
+  const s = x.toFixed(digits);
+  return s === `-${(0).toFixed(digits)}` ? (0).toFixed(digits) : s;
+}
+
+export function printJson(value: unknown): void {
+  process.stdout.write(JSON.stringify(value) + '\n');
+}

@@ -1,0 +1,49 @@
+/**
+ * The angular (equidistant) fisheye of dome masters (DESIGN.md "Fisheye convention"): radius from the
+ * centre ∝ angle from the zenith; front of the dome at the bottom of the frame, viewer's right on the right.
+ */
+import { safeAcos, type ReadonlyVec3, type Vec3 } from './math.js';
+
+/**
+ * Unit direction → normalized fisheye (u, v) for a content field of view `fov` (radians):
+ * θ = acos(v_z), ρ = 0.5·θ/(fov/2), u = 0.5 + ρ·v_x/√(v_x²+v_y²), v = 0.5 + ρ·v_y/√(v_x²+v_y²).
+ * The zenith maps to the centre; directions below the fov's edge give ρ > 0.5 (outside the circle).
+ */
+export function directionToFisheye(out: [number, number], d: ReadonlyVec3, fov: number): [number, number] {
+  const theta = safeAcos(d[2]);
+  const h = Math.sqrt(d[0] * d[0] + d[1] * d[1]);
+  if (h < 1e-300) {
+    // straight up (or down): azimuth undefined; the zenith is the centre
+    out[0] = 0.5;
+    out[1] = theta < 1 ? 0.5 : 0.5 + theta / fov;
+    return out;
+  }
+  const k = theta / fov / h; // = (0.5·θ/(fov/2)) / h
+  out[0] = 0.5 + k * d[0];
+  out[1] = 0.5 + k * d[1];
+  return out;
+}
+
+/** Normalized fisheye (u, v) → unit direction (any radius; ρ > 0.5 goes beyond the fov edge). */
+export function fisheyeToDirection(out: Vec3, u: number, v: number, fov: number): Vec3 {
+  const x = u - 0.5;
+  const y = v - 0.5;
+  const rho = Math.sqrt(x * x + y * y);
+  const theta = rho * fov;
+  if (rho < 1e-300) {
+    out[0] = 0;
+    out[1] = 0;
+    out[2] = 1;
+    return out;
+  }
+  const s = Math.sin(theta) / rho;
+  out[0] = x * s;
+  out[1] = y * s;
+  out[2] = Math.cos(theta);
+  return out;
+}
+
+/** Angle from the zenith, radians, of normalized fisheye (u, v). */
+export function fisheyeZenithAngle(u: number, v: number, fov: number): number {
+  return Math.hypot(u - 0.5, v - 0.5) * fov;
+}

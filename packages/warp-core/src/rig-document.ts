@@ -1,0 +1,301 @@
+/**
+ * Rig documents (the parsed YAML/JSON of a rig file) → the Rig model, validating at the boundary:
+ * every error names the dotted field, what was expected and what came.
+ */
+import { DEG, length, normalize, RAD, type Vec3 } from './math.js';
+import { RigError, validateRigGeometry, type ProjectorBody, type Rig } from './rig.js';
+import { fromMetres, isLengthUnit, LENGTH_UNITS, LengthSyntaxError, METRES_PER_UNIT, parseLengthString, type LengthUnit } from './units.js';
+
+type Doc = Record<string, unknown>;
+
+/** The fields a rig document may hold, by section; used for unknown-field checks with a did-you-mean. */
+export const RIG_FIELDS: Readonly<Record<string, readonly string[]>> = {
+  '': ['units', 'name', 'notes', 'dome', 'mirror', 'projector', 'content'],
+  dome: ['radius', 'diameter', 'floor'],
+  mirror: ['radius', 'cap', 'center', 'axis', 'capAngle'],
+  'mirror.cap': ['width', 'depth'],
+  projector: ['position', 'lookAt', 'roll', 'up', 'resolution', 'throwRatio', 'lensShift', 'body', 'aperture', 'minFocus'],
+  'projector.body': ['width', 'length', 'height'],
+  content: ['fov', 'eye'],
+};
+
+/** Shows a value the way it appeared in the file: strings quoted, others as JSON. */
+export function showValue(v: unknown): string {
+  if (v === undefined) return 'nothing';
+  if (v === null) return 'null';
+  if (typeof v === 'string') return JSON.stringify(v);
+  if (typeof v === 'number') return String(v);
+  try {
+    const s = JSON.stringify(v);
+    return s.length > 60 ? s.slice(0, 57) + '...' : s;
+  } catch {
+    return String(v);
+  }
+}
+
+function editDistance(a: string, b: string): number {
+  const dp = Array.from({ length: b.length + 1 }, (_, j) => j);
+  for (let i = 1; i <= a.length; i++) {
+    let prev = dp[0];
+    dp[0] = i;
+    for (let j = 1; j <= b.length; j++) {
+      const t = dp[j];
+      dp[j] = Math.min(dp[j] + 1, dp[j - 1] + 1, prev + (a[i - 1] === b[j - 1] ? 0 : 1));
+      prev = t;
+    }
+  }
+  return dp[b.length];
+}
+
+/** The known name nearest to `name`, if it is near enough to be a likely typo. */
+export function didYouMean(name: string, known: readonly string[]): string | undefined {
+  let best: string | undefined;
+  let bestD = Infinity;
+  for (const k of known) {
+    const d = editDistance(name.toLowerCase(), k.toLowerCase());
+    if (d < bestD) {
+      bestD = d;
+      best = k;
+    }
+  }
+  return best !== undefined && bestD <= Math.max(2, Math.floor(best.length / 3)) ? best : undefined;
+}
+
+/** Reads lengths, angles and vectors from one document with one default unit. */
+export class FieldReader {
+  constructor(readonly units: LengthUnit) {}
+
+  /** A length in metres from a number (in the document's units) or a string with its own unit. */
+  length(v: unknown, field: string, what: 'positive' | 'non-negative' | 'any' = 'any'): number {
+    const expected = what === 'any' ? 'a length' : `a ${what} length`;
+    let metres: number;
+    if (typeof v === 'number' && Number.isFinite(v)) {
+      metres = v * METRES_PER_UNIT[this.units];
+    } else if (typeof v === 'string') {
+      try {
+        metres = parseLengthString(v);
+      } catch (e) {
+        if (e instanceof LengthSyntaxError && e.unit !== undefined) {
+          throw new RigError(field, `unknown unit "${e.unit}" in ${showValue(v)} (expected one of ${LENGTH_UNITS.join(', ')})`);
+        }
+        throw new RigError(field, `expected ${expected} (a number, or a string such as "2.4 m" or "7 ft 6 in"), got ${showValue(v)}`);
+      }
+    } else {
+      throw new RigError(field, `expected ${expected}, got ${showValue(v)}`);
+    }
+    if ((what === 'positive' && !(metres > 0)) || (what === 'non-negative' && !(metres >= 0)) || !Number.isFinite(metres)) {
+      throw new RigError(field, `expected ${expected}, got ${showValue(v)}`);
+    }
+    return metres;
+  }
+
+  point(v: unknown, field: string): Vec3 {
+    if (!Array.isArray(v) || v.length !== 3) throw new RigError(field, `expected a point [x, y, z] of three lengths, got ${showValue(v)}`);
+    return [this.length(v[0], `${field}[0]`), this.length(v[1], `${field}[1]`), this.length(v[2], `${field}[2]`)];
+  }
+
+  /** A direction: three numbers of any length (not all zero), returned normalized. */
+  direction(v: unknown, field: string): Vec3 {
+    if (!Array.isArray(v) || v.length !== 3 || !v.every((x) => typeof x === 'number' && Number.isFinite(x))) {
+      throw new RigError(field, `expected a direction [x, y, z] of three numbers, got ${showValue(v)}`);
+    }
+    const d: Vec3 = [v[0], v[1], v[2]];
+    if (!(length(d) > 1e-12)) throw new RigError(field, `expected a non-zero direction, got ${showValue(v)}`);
+    return normalize(d);
+  }
+
+  number(v: unknown, field: string, check?: (x: number) => boolean, expected = 'a number'): number {
+    if (typeof v !== 'number' || !Number.isFinite(v) || (check && !check(v))) throw new RigError(field, `expected ${expected}, got ${showValue(v)}`);
+    return v;
+  }
+
+  pair(v: unknown, field: string): [number, number] {
+    if (!Array.isArray(v) || v.length !== 2 || !v.every((x) => typeof x === 'number' && Number.isFinite(x))) {
+      throw new RigError(field, `expected two numbers [x, y], got ${showValue(v)}`);
+    }
+    return [v[0], v[1]];
+  }
+}
+
+function section(doc: Doc, key: string, required: boolean): Doc | undefined {
+  const v = doc[key];
+  if (v === undefined || v === null) {
+    if (required) throw new RigError(key, 'is missing');
+    return undefined;
+  }
+  if (typeof v !== 'object' || Array.isArray(v)) throw new RigError(key, `expected a section of fields, got ${showValue(v)}`);
+  return v as Doc;
+}
+
+/** Throws on a field the rig format does not have, suggesting the nearest known one. */
+export function checkKnownFields(obj: Doc, path: string, known: readonly string[]): void {
+  for (const key of Object.keys(obj)) {
+    if (!known.includes(key)) {
+      const hint = didYouMean(key, known);
+      const field = path ? `${path}.${key}` : key;
+      throw new RigError(field, `unknown field${hint ? `; did you mean "${hint}"?` : ` (known here: ${known.join(', ')})`}`);
+    }
+  }
+}
+
+function need(obj: Doc, key: string, path: string): unknown {
+  const v = obj[key];
+  if (v === undefined || v === null) throw new RigError(`${path}.${key}`, 'is missing');
+  return v;
+}
+
+export interface ParsedRig {
+  rig: Rig;
+  warnings: string[];
+}
+
+/** Reads the document's `units` (default metres). */
+export function documentUnits(doc: Doc, field = 'units'): LengthUnit {
+  const u = doc.units;
+  if (u === undefined || u === null) return 'm';
+  if (!isLengthUnit(u)) {
+    const hint = typeof u === 'string' ? didYouMean(u, LENGTH_UNITS) : undefined;
+    throw new RigError(field, `unknown unit ${showValue(u)} (expected one of ${LENGTH_UNITS.join(', ')})${hint ? `; did you mean "${hint}"?` : ''}`);
+  }
+  return u;
+}
+
+/**
+ * A parsed rig document → a validated Rig. Throws RigError naming the field. Warnings are for rigs that
+ * work but are probably not what was meant (see `rigWarnings`).
+ */
+export function rigFromDocument(input: unknown): Rig {
+  if (typeof input !== 'object' || input === null || Array.isArray(input)) throw new RigError('', `expected a rig document (a mapping of dome, mirror, projector, content), got ${showValue(input)}`);
+  const doc = input as Doc;
+  checkKnownFields(doc, '', RIG_FIELDS['']);
+  const units = documentUnits(doc);
+  const r = new FieldReader(units);
+
+  const dome = section(doc, 'dome', true)!;
+  checkKnownFields(dome, 'dome', RIG_FIELDS.dome);
+  let domeRadius: number;
+  if (dome.radius !== undefined && dome.diameter !== undefined) throw new RigError('dome', 'give dome.radius or dome.diameter, not both');
+  if (dome.radius !== undefined) domeRadius = r.length(dome.radius, 'dome.radius', 'positive');
+  else if (dome.diameter !== undefined) domeRadius = r.length(dome.diameter, 'dome.diameter', 'positive') / 2;
+  else throw new RigError('dome.radius', 'is missing (give dome.radius or dome.diameter)');
+  const floor = dome.floor === undefined ? undefined : r.length(dome.floor, 'dome.floor', 'positive');
+
+  const mirror = section(doc, 'mirror', true)!;
+  checkKnownFields(mirror, 'mirror', RIG_FIELDS.mirror);
+  if (mirror.radius !== undefined && mirror.cap !== undefined) throw new RigError('mirror', 'give mirror.radius or mirror.cap, not both');
+  let mirrorRadius: number;
+  let capAngleFromCap: number | undefined;
+  if (mirror.radius !== undefined) {
+    mirrorRadius = r.length(mirror.radius, 'mirror.radius', 'positive');
+  } else if (mirror.cap !== undefined) {
+    const cap = section(mirror, 'cap', true)!;
+    checkKnownFields(cap, 'mirror.cap', RIG_FIELDS['mirror.cap']);
+    const width = r.length(need(cap, 'width', 'mirror.cap'), 'mirror.cap.width', 'positive');
+    const depth = r.length(need(cap, 'depth', 'mirror.cap'), 'mirror.cap.depth', 'positive');
+    if (depth > width / 2 + 1e-12) {
+      // Deeper than a hemisphere: the rim is narrower than the sphere, so width and depth no longer say which.
+      throw new RigError('mirror.cap.depth', `a cap deeper than half its width is more than a hemisphere; give mirror.radius and mirror.capAngle instead (got depth ${showValue(cap.depth)}, width ${showValue(cap.width)})`);
+    }
+    mirrorRadius = sagittaRadius(width, depth);
+    capAngleFromCap = Math.atan2(width / 2, mirrorRadius - depth);
+  } else {
+    throw new RigError('mirror.radius', 'is missing (give mirror.radius, or mirror.cap with width and depth)');
+  }
+  const center = r.point(need(mirror, 'center', 'mirror'), 'mirror.center');
+  const axis = mirror.axis === undefined ? ([0, 0, 1] as Vec3) : r.direction(mirror.axis, 'mirror.axis');
+  const capAngle =
+    mirror.capAngle !== undefined
+      ? r.number(mirror.capAngle, 'mirror.capAngle', (x) => x > 0 && x <= 180, 'an angle in (0, 180] degrees') * DEG
+      : (capAngleFromCap ?? Math.PI / 2);
+
+  const proj = section(doc, 'projector', true)!;
+  checkKnownFields(proj, 'projector', RIG_FIELDS.projector);
+  const position = r.point(need(proj, 'position', 'projector'), 'projector.position');
+  const lookAt = r.point(need(proj, 'lookAt', 'projector'), 'projector.lookAt');
+  const roll = proj.roll === undefined ? 0 : r.number(proj.roll, 'projector.roll', undefined, 'an angle in degrees') * DEG;
+  const up = proj.up === undefined ? undefined : r.direction(proj.up, 'projector.up');
+  const resV = need(proj, 'resolution', 'projector');
+  if (!Array.isArray(resV) || resV.length !== 2 || !resV.every((x) => typeof x === 'number' && Number.isInteger(x) && x > 0)) {
+    throw new RigError('projector.resolution', `expected two positive whole numbers [width, height], got ${showValue(resV)}`);
+  }
+  const throwRatio = r.number(need(proj, 'throwRatio', 'projector'), 'projector.throwRatio', (x) => x > 0, 'a positive number (throw distance / image width)');
+  const lensShift = proj.lensShift === undefined ? ([0, 0] as [number, number]) : r.pair(proj.lensShift, 'projector.lensShift');
+  let body: ProjectorBody | undefined;
+  if (proj.body !== undefined) {
+    const b = section(proj, 'body', true)!;
+    checkKnownFields(b, 'projector.body', RIG_FIELDS['projector.body']);
+    body = {
+      width: r.length(need(b, 'width', 'projector.body'), 'projector.body.width', 'positive'),
+      length: r.length(need(b, 'length', 'projector.body'), 'projector.body.length', 'positive'),
+      height: r.length(need(b, 'height', 'projector.body'), 'projector.body.height', 'positive'),
+    };
+  }
+  const aperture = proj.aperture === undefined ? undefined : r.length(proj.aperture, 'projector.aperture', 'positive');
+  const minFocus = proj.minFocus === undefined ? undefined : r.length(proj.minFocus, 'projector.minFocus', 'positive');
+
+  const content = section(doc, 'content', false) ?? {};
+  checkKnownFields(content, 'content', RIG_FIELDS.content);
+  const fovDeg = content.fov === undefined ? 180 : r.number(content.fov, 'content.fov', (x) => x > 0 && x <= 360, 'an angle in (0, 360] degrees');
+  const eye = content.eye === undefined ? ([0, 0, 0] as Vec3) : r.point(content.eye, 'content.eye');
+
+  let name: string | undefined;
+  if (doc.name !== undefined) {
+    if (typeof doc.name !== 'string') throw new RigError('name', `expected text, got ${showValue(doc.name)}`);
+    name = doc.name;
+  }
+  if (doc.notes !== undefined && typeof doc.notes !== 'string') throw new RigError('notes', `expected text, got ${showValue(doc.notes)}`);
+
+  const rig: Rig = {
+    units,
+    name,
+    dome: { radius: domeRadius, floor },
+    mirror: { center, radius: mirrorRadius, axis, capAngle },
+    projector: { position, lookAt, roll, up, resolution: [resV[0], resV[1]], throwRatio, lensShift, body, aperture, minFocus },
+    content: { fov: fovDeg * DEG, eye },
+  };
+  validateRigGeometry(rig);
+  return rig;
+}
+
+/**
+ * Sphere radius of a cap from its rim width and depth — the sagitta relation r = (s² + (w/2)²) / (2s)
+ * (handbook geometry).
+ */
+export function sagittaRadius(width: number, depth: number): number {
+  return (depth * depth + (width / 2) * (width / 2)) / (2 * depth);
+}
+
+function round(x: number, digits: number): number {
+  const v = Number(x.toFixed(digits));
+  return Object.is(v, -0) ? 0 : v;
+}
+
+/**
+ * A Rig → a rig document in the given units (numbers in those units, angles in degrees), the inverse of
+ * `rigFromDocument` up to rounding to `digits` decimals of the unit.
+ */
+export function rigToDocument(rig: Rig, units: LengthUnit = rig.units, digits = 6): Doc {
+  const L = (m: number) => round(fromMetres(m, units), digits);
+  const P = (v: readonly number[]) => v.map((x) => L(x));
+  const D = (v: readonly number[]) => v.map((x) => round(x, 9));
+  const doc: Doc = { units };
+  if (rig.name) doc.name = rig.name;
+  doc.dome = { radius: L(rig.dome.radius), ...(rig.dome.floor !== undefined ? { floor: L(rig.dome.floor) } : {}) };
+  doc.mirror = { radius: L(rig.mirror.radius), center: P(rig.mirror.center), axis: D(rig.mirror.axis), capAngle: round(rig.mirror.capAngle * RAD, 9) };
+  const p = rig.projector;
+  const proj: Doc = {
+    position: P(p.position),
+    lookAt: P(p.lookAt),
+    roll: round(p.roll * RAD, 9),
+  };
+  if (p.up) proj.up = D(p.up);
+  proj.resolution = [...p.resolution];
+  proj.throwRatio = round(p.throwRatio, 9);
+  proj.lensShift = D(p.lensShift);
+  if (p.body) proj.body = { width: L(p.body.width), length: L(p.body.length), height: L(p.body.height) };
+  if (p.aperture !== undefined) proj.aperture = L(p.aperture);
+  if (p.minFocus !== undefined) proj.minFocus = L(p.minFocus);
+  doc.projector = proj;
+  doc.content = { fov: round(rig.content.fov * RAD, 9), eye: P(rig.content.eye) };
+  return doc;
+}

@@ -1,0 +1,154 @@
+/**
+ * The rig: dome, mirror, projector and content, in metres and radians (DESIGN.md "Frames and units").
+ * Rig files speak degrees and the file's units; `rig-document.ts` converts at that boundary.
+ */
+import { cross, DEG, dot, length, normalize, safeAcos, scale, sub, type ReadonlyVec3, type Vec3 } from './math.js';
+import type { LengthUnit } from './units.js';
+
+export interface DomeModel {
+  /** Radius of the dome sphere, centred on the world origin. */
+  radius: number;
+  /** How far the floor lies below the springline (positive), if known. */
+  floor?: number;
+}
+
+export interface MirrorModel {
+  center: Vec3;
+  radius: number;
+  /** Unit vector out of the reflective face. */
+  axis: Vec3;
+  /** Half-angle of the reflective cap, radians (π/2 = hemisphere). */
+  capAngle: number;
+}
+
+/** The projector's body as a box behind the lens, aligned with its axes (lens at the front face's centre). */
+export interface ProjectorBody {
+  width: number;
+  length: number;
+  height: number;
+}
+
+export interface ProjectorModel {
+  /** The lens: centre of projection. */
+  position: Vec3;
+  /** Any point on the optical axis. */
+  lookAt: Vec3;
+  /** Radians, right-hand rule about forward. */
+  roll: number;
+  /** Replaces world +z as the starting up; needed for a vertical optical axis. */
+  up?: Vec3;
+  resolution: [number, number];
+  throwRatio: number;
+  /** Image-centre offset in fractions of width and height; +y moves the picture up. */
+  lensShift: [number, number];
+  body?: ProjectorBody;
+  /** Lens aperture diameter (entrance pupil), for focus blur estimates. */
+  aperture?: number;
+  /** Nearest distance the lens can focus at. */
+  minFocus?: number;
+}
+
+export interface ContentModel {
+  /** Full field of view of the dome master, radians (π = a hemisphere down to the horizon). */
+  fov: number;
+  /** Point the content is mapped for. */
+  eye: Vec3;
+}
+
+export interface Rig {
+  /** The units the rig file used; output in a person's units follows it. */
+  units: LengthUnit;
+  name?: string;
+  dome: DomeModel;
+  mirror: MirrorModel;
+  projector: ProjectorModel;
+  content: ContentModel;
+}
+
+/** A rig that cannot work, or a field that is wrong; `field` is the dotted path ("mirror.radius"). */
+export class RigError extends Error {
+  constructor(readonly field: string, readonly reason: string) {
+    super(field ? `${field}: ${reason}` : reason);
+    this.name = 'RigError';
+  }
+}
+
+export interface ProjectorBasis {
+  forward: Vec3;
+  right: Vec3;
+  up: Vec3;
+}
+
+/**
+ * forward = normalize(lookAt − position); up = the starting up made orthogonal to forward, then turned
+ * about forward by roll (right-hand rule); right = forward × up (DESIGN.md "Projector model").
+ */
+export function projectorBasis(p: Pick<ProjectorModel, 'position' | 'lookAt' | 'roll' | 'up'>): ProjectorBasis {
+  const f0 = sub(p.lookAt, p.position);
+  if (length(f0) < 1e-12) throw new RigError('projector.lookAt', 'must differ from projector.position');
+  const forward = normalize(f0);
+  const start: ReadonlyVec3 = p.up ?? [0, 0, 1];
+  const ortho = sub(start, scale(forward, dot(start, forward)));
+  if (length(ortho) < 1e-9 * Math.max(1, length(start))) {
+    throw new RigError(
+      p.up ? 'projector.up' : 'projector.lookAt',
+      p.up ? 'must not be parallel to the optical axis' : 'the optical axis is vertical: give projector.up to say which way the picture is up',
+    );
+  }
+  const up0 = normalize(ortho);
+  // Rodrigues' rotation of up0 about forward (up0 ⊥ forward, so the axial term vanishes).
+  const c = Math.cos(p.roll);
+  const s = Math.sin(p.roll);
+  const fxu = cross(forward, up0);
+  const up = normalize([up0[0] * c + fxu[0] * s, up0[1] * c + fxu[1] * s, up0[2] * c + fxu[2] * s]);
+  const right = cross(forward, up);
+  return { forward, right, up };
+}
+
+/** The mirror's pole: the cap's apex, center + radius·axis. */
+export function mirrorPole(m: MirrorModel): Vec3 {
+  return [m.center[0] + m.radius * m.axis[0], m.center[1] + m.radius * m.axis[1], m.center[2] + m.radius * m.axis[2]];
+}
+
+/** Largest distance from the dome centre of any point of the mirror's reflective cap. */
+export function capFarthestDistance(m: MirrorModel): number {
+  const cl = length(m.center);
+  if (cl < 1e-15) return m.radius;
+  const angleToCenterDir = safeAcos(dot(m.axis, m.center) / cl);
+  const gap = Math.max(0, angleToCenterDir - m.capAngle);
+  // |C + r·m|² = |C|² + r² + 2r C·m, largest where m is nearest the direction of C within the cap.
+  return Math.sqrt(cl * cl + m.radius * m.radius + 2 * m.radius * cl * Math.cos(gap));
+}
+
+/**
+ * Geometry that cannot work is refused with a reason (throws RigError). Field-level checks (positive
+ * lengths, ranges) live in the document parser; this holds the relations between parts, so that rigs
+ * made by the fit or the planner are checked the same way.
+ */
+export function validateRigGeometry(rig: Rig): void {
+  const R = rig.dome.radius;
+  const { mirror, projector, content } = rig;
+  if (!(R > 0)) throw new RigError('dome.radius', 'expected a positive length');
+  if (!(mirror.radius > 0)) throw new RigError('mirror.radius', 'expected a positive length');
+  if (!(mirror.capAngle > 0 && mirror.capAngle <= Math.PI)) throw new RigError('mirror.capAngle', 'expected an angle in (0, 180] degrees');
+  const far = capFarthestDistance(mirror);
+  if (!(far < R)) {
+    throw new RigError('mirror.center', `the mirror is not inside the dome (its cap reaches ${far.toFixed(3)} m from the dome centre; the dome radius is ${R.toFixed(3)} m)`);
+  }
+  const pd = length(projector.position);
+  if (!(pd < R)) throw new RigError('projector.position', `the projector is outside the dome (${pd.toFixed(3)} m from the centre; the dome radius is ${R.toFixed(3)} m)`);
+  const pm = length(sub(projector.position, mirror.center));
+  if (!(pm > mirror.radius)) throw new RigError('projector.position', 'the projector is inside the mirror sphere');
+  const [w, h] = projector.resolution;
+  if (!(Number.isInteger(w) && w > 0 && Number.isInteger(h) && h > 0)) throw new RigError('projector.resolution', 'expected two positive whole numbers');
+  if (!(projector.throwRatio > 0)) throw new RigError('projector.throwRatio', 'expected a positive number');
+  projectorBasis(projector);
+  if (!(content.fov > 0 && content.fov <= 2 * Math.PI)) throw new RigError('content.fov', 'expected an angle in (0, 360] degrees');
+  if (!(length(content.eye) < R)) throw new RigError('content.eye', 'the eye point must be inside the dome');
+  if (rig.dome.floor !== undefined && !(rig.dome.floor > 0)) throw new RigError('dome.floor', 'expected a positive length');
+}
+
+/** Degrees helper for building rigs in code. */
+export function deg(d: number): number {
+  return d * DEG;
+}

@@ -1,0 +1,91 @@
+/**
+ * Lengths as people write them on a tape-measure notebook: a bare number in the document's units,
+ * or a string with its own unit ("8 ft", "19 in", "2.4 m", "7 ft 6 in", "35 cm"). Metres inside.
+ */
+
+export type LengthUnit = 'm' | 'cm' | 'mm' | 'ft' | 'in';
+
+export const LENGTH_UNITS: readonly LengthUnit[] = ['m', 'cm', 'mm', 'ft', 'in'];
+
+/** Metres per unit. The foot and inch are the international ones (exactly 0.3048 m, 0.0254 m). */
+export const METRES_PER_UNIT: Readonly<Record<LengthUnit, number>> = { m: 1, cm: 0.01, mm: 0.001, ft: 0.3048, in: 0.0254 };
+
+const UNIT_ALIASES: Readonly<Record<string, LengthUnit>> = {
+  m: 'm', metre: 'm', metres: 'm', meter: 'm', meters: 'm',
+  cm: 'cm', centimetre: 'cm', centimetres: 'cm', centimeter: 'cm', centimeters: 'cm',
+  mm: 'mm', millimetre: 'mm', millimetres: 'mm', millimeter: 'mm', millimeters: 'mm',
+  ft: 'ft', foot: 'ft', feet: 'ft', "'": 'ft', '′': 'ft',
+  in: 'in', inch: 'in', inches: 'in', '"': 'in', '″': 'in',
+};
+
+export function isLengthUnit(s: unknown): s is LengthUnit {
+  return typeof s === 'string' && (LENGTH_UNITS as readonly string[]).includes(s);
+}
+
+/** Why a length string could not be read; `unit` is set when the trouble is an unknown unit. */
+export class LengthSyntaxError extends Error {
+  constructor(message: string, readonly unit?: string) {
+    super(message);
+  }
+}
+
+const TERM = /^\s*(\d+(?:\.\d*)?|\.\d+)(?:e([+-]?\d+))?\s*([A-Za-z]+|['"′″])?/;
+
+/**
+ * Parses "7 ft 6 in", "-3 in", "2.4m", "35 cm", `7'6"` to metres. Each term needs a unit; a leading
+ * minus applies to the whole length. Throws LengthSyntaxError.
+ */
+export function parseLengthString(text: string): number {
+  let rest = text.trim();
+  let sign = 1;
+  if (rest.startsWith('-') || rest.startsWith('−')) {
+    sign = -1;
+    rest = rest.slice(1);
+  } else if (rest.startsWith('+')) {
+    rest = rest.slice(1);
+  }
+  if (rest.trim() === '') throw new LengthSyntaxError('no number');
+  let total = 0;
+  let terms = 0;
+  while (rest.trim() !== '') {
+    const m = TERM.exec(rest);
+    if (!m) throw new LengthSyntaxError('not a length');
+    const value = Number(m[1]) * (m[2] ? 10 ** Number(m[2]) : 1);
+    const unitText = m[3];
+    if (unitText === undefined) throw new LengthSyntaxError('a number in a string needs a unit');
+    const unit = UNIT_ALIASES[unitText.toLowerCase()] ?? UNIT_ALIASES[unitText];
+    if (unit === undefined) throw new LengthSyntaxError(`unknown unit "${unitText}"`, unitText);
+    total += value * METRES_PER_UNIT[unit];
+    terms++;
+    rest = rest.slice(m[0].length);
+  }
+  if (terms === 0) throw new LengthSyntaxError('not a length');
+  return sign * total;
+}
+
+/** Metres → the given unit. */
+export function fromMetres(metres: number, unit: LengthUnit): number {
+  return metres / METRES_PER_UNIT[unit];
+}
+
+/** Metres → the given unit. */
+export function toMetres(value: number, unit: LengthUnit): number {
+  return value * METRES_PER_UNIT[unit];
+}
+
+/** A readable length in the given unit: "2.500 m", "8 ft 2.4 in", "31.5 in". */
+export function formatLength(metres: number, unit: LengthUnit, digits = 3): string {
+  if (unit === 'ft') {
+    const inches = metres / METRES_PER_UNIT.in;
+    const sign = inches < 0 ? '-' : '';
+    const a = Math.abs(inches);
+    let ft = Math.floor(a / 12);
+    let rem = Number((a - ft * 12).toFixed(2));
+    if (rem >= 12) {
+      ft += 1;
+      rem -= 12;
+    }
+    return ft === 0 ? `${sign}${rem} in` : `${sign}${ft} ft ${rem} in`;
+  }
+  return `${Number(fromMetres(metres, unit).toFixed(digits))} ${unit}`;
+}
