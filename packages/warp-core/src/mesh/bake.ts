@@ -1,0 +1,275 @@
+/**
+ * Baking the warp mesh (DESIGN.md "The warp mesh and its files"): a corner-to-corner vertex grid with
+ * fisheye (u, v), brightness and mask, and an honest measure of how far bilinear interpolation across
+ * its cells puts content from where the exact trace puts it.
+ */
+import { DEG } from '../math.js';
+import type { Rig } from '../rig.js';
+import { allocGridOutput, HitKind, Tracer } from '../trace.js';
+import { brightnessFactor, contentVisible, domeAreaOnGrid, featherMask, fillUnlit, quantile, referenceArea } from './field.js';
+import { createMesh, type WarpMesh } from './mesh.js';
+
+export interface BakeOptions {
+  /** Vertices across and down; chosen from `tolerance` when absent. */
+  grid?: [number, number];
+  /** Largest interpolation error allowed over 99% of lit cells, projector pixels. */
+  tolerance: number;
+  /** Dome-master size N the errors in dome-master pixels refer to. */
+  masterSize: number;
+  /** Brightness compensation strength s in [0, 1]. */
+  brightness: number;
+  /** Lowest brightness factor. */
+  brightnessFloor: number;
+  /** Soft edge width in degrees on the dome (0 = hard edge). */
+  feather: number;
+  /** Samples per cell side when measuring the error. */
+  samplesPerCell: number;
+  /** Largest number of vertices across when choosing the grid. */
+  maxCols: number;
+}
+
+/** The one place bake defaults live (the CLI reads them too). */
+export const BAKE_DEFAULTS: Readonly<BakeOptions> = {
+  tolerance: 0.5,
+  masterSize: 4096,
+  brightness: 1,
+  brightnessFloor: 0.1,
+  feather: 0,
+  samplesPerCell: 5,
+  maxCols: 1025,
+};
+
+export interface MeshAccuracy {
+  /** Lit cells measured (all four vertices light the dome within the content). */
+  cells: number;
+  /** Per-cell worst error, 99th percentile and maximum, in projector pixels and dome-master pixels. */
+  errorP99Projector: number;
+  errorMaxProjector: number;
+  errorP99Px: number;
+  errorMaxPx: number;
+  /** Share of measured cells whose worst error exceeds the tolerance. */
+  overTolerance: number;
+  /** Projector pixel of the worst cell's worst sample. */
+  worstAt: [number, number];
+  /** The worst sample's distance in projector pixels from the nearest unlit vertex (the mirror's rim or silhouette, the content edge). */
+  worstNearEdge: boolean;
+}
+
+export interface BakeResult {
+  mesh: WarpMesh;
+  accuracy: MeshAccuracy;
+  /** Share of vertices that are lit (mask > 0). */
+  litFraction: number;
+  brightnessMin: number;
+  brightnessMax: number;
+  /** The reference area A_max, m² per projector pixel. */
+  areaMax: number;
+  /** Plain-language remarks (e.g. where the tolerance cannot be met). */
+  notes: string[];
+  options: BakeOptions;
+}
+
+function vertexCoords(n: number, size: number): Float64Array {
+  return Float64Array.from({ length: n }, (_, i) => (i * size) / (n - 1));
+}
+
+/** Builds the mesh for a given grid: (u, v) per vertex, brightness and mask. */
+export function buildMesh(tracer: Tracer, cols: number, rows: number, o: BakeOptions, areaMax: number, meta: Record<string, unknown> = {}): WarpMesh {
+  const { width: W, height: H } = tracer.frame;
+  const xs = vertexCoords(cols, W);
+  const ys = vertexCoords(rows, H);
+  const g = tracer.grid(xs, ys, allocGridOutput(cols, rows));
+  const area = domeAreaOnGrid(tracer, xs, ys);
+  const mesh = createMesh(cols, rows, W, H, meta);
+  const n = cols * rows;
+  const lit = new Uint8Array(n);
+  const traced = new Uint8Array(n);
+  for (let k = 0; k < n; k++) {
+    traced[k] = g.kind[k] === HitKind.MirrorMiss ? 0 : 1;
+    lit[k] = contentVisible(tracer, g.u[k], g.v[k], g.kind[k]) ? 1 : 0;
+    mesh.brightness[k] = lit[k] ? brightnessFactor(area[k], areaMax, { strength: o.brightness, floor: o.brightnessFloor }) : 0;
+  }
+  const mask = featherMask(g, tracer.rig.content.fov, o.feather * DEG, lit);
+  mesh.mask.set(mask);
+  fillUnlit(cols, rows, traced, g.u, g.v);
+  fillUnlit(cols, rows, lit, mesh.brightness);
+  mesh.u.set(g.u);
+  mesh.v.set(g.v);
+  return mesh;
+}
+
+/**
+ * Measures the bilinear interpolation error of the mesh against the exact trace at k×k points inside
+ * every fully lit cell. The error in dome-master pixels δ is turned into projector pixels by the
+ * inverse of the local Jacobian J = ∂(u·N, v·N)/∂(x, y): |J⁻¹δ| is how far, in projector pixels, the
+ * mesh shifts the content.
+ */
+export function measureAccuracy(tracer: Tracer, mesh: WarpMesh, masterSize: number, k = 5, tolerance = 0.5): MeshAccuracy {
+  const { cols, rows, width: W, height: H } = mesh;
+  const cw = W / (cols - 1);
+  const ch = H / (rows - 1);
+  const sx = new Float64Array((cols - 1) * k);
+  const sy = new Float64Array((rows - 1) * k);
+  for (let c = 0; c < cols - 1; c++) for (let a = 0; a < k; a++) sx[c * k + a] = (c + (a + 0.5) / k) * cw;
+  for (let r = 0; r < rows - 1; r++) for (let a = 0; a < k; a++) sy[r * k + a] = (r + (a + 0.5) / k) * ch;
+  const nx = sx.length;
+  const ny = sy.length;
+  const h = 0.5;
+  const g = tracer.grid(sx, sy, allocGridOutput(nx, ny));
+  const gxm = tracer.grid(sx.map((x) => x - h), sy, allocGridOutput(nx, ny));
+  const gxp = tracer.grid(sx.map((x) => x + h), sy, allocGridOutput(nx, ny));
+  const gym = tracer.grid(sx, sy.map((y) => y - h), allocGridOutput(nx, ny));
+  const gyp = tracer.grid(sx, sy.map((y) => y + h), allocGridOutput(nx, ny));
+  const N = masterSize;
+  const cellPx: number[] = [];
+  const cellProj: number[] = [];
+  let worst = -1;
+  let worstAt: [number, number] = [0, 0];
+  let worstCell = -1;
+  for (let r = 0; r < rows - 1; r++) {
+    for (let c = 0; c < cols - 1; c++) {
+      const v00 = r * cols + c;
+      const v10 = v00 + 1;
+      const v01 = v00 + cols;
+      const v11 = v01 + 1;
+      if (!(mesh.mask[v00] > 0 && mesh.mask[v10] > 0 && mesh.mask[v01] > 0 && mesh.mask[v11] > 0)) continue;
+      let maxPx = 0;
+      let maxProj = 0;
+      let at: [number, number] = [0, 0];
+      let measured = false;
+      for (let b = 0; b < k; b++) {
+        const fy = (b + 0.5) / k;
+        for (let a = 0; a < k; a++) {
+          const fx = (a + 0.5) / k;
+          const idx = (r * k + b) * nx + (c * k + a);
+          if (g.kind[idx] === HitKind.MirrorMiss) continue;
+          const w00 = (1 - fx) * (1 - fy);
+          const w10 = fx * (1 - fy);
+          const w01 = (1 - fx) * fy;
+          const w11 = fx * fy;
+          const mu = w00 * mesh.u[v00] + w10 * mesh.u[v10] + w01 * mesh.u[v01] + w11 * mesh.u[v11];
+          const mv = w00 * mesh.v[v00] + w10 * mesh.v[v10] + w01 * mesh.v[v01] + w11 * mesh.v[v11];
+          const du = (mu - g.u[idx]) * N;
+          const dv = (mv - g.v[idx]) * N;
+          const ePx = Math.hypot(du, dv);
+          // local Jacobian in dome-master pixels per projector pixel (one-sided where a neighbour misses)
+          const jx = deriv(g, gxm, gxp, idx, h);
+          const jy = deriv(g, gym, gyp, idx, h);
+          let eProj: number;
+          if (jx && jy) {
+            const a11 = jx[0] * N, a21 = jx[1] * N, a12 = jy[0] * N, a22 = jy[1] * N;
+            const det = a11 * a22 - a12 * a21;
+            if (Math.abs(det) > 1e-12) {
+              const px = (a22 * du - a12 * dv) / det;
+              const py = (-a21 * du + a11 * dv) / det;
+              eProj = Math.hypot(px, py);
+            } else eProj = Infinity;
+          } else eProj = Infinity;
+          measured = true;
+          if (ePx > maxPx) maxPx = ePx;
+          if (eProj > maxProj) {
+            maxProj = eProj;
+            at = [sx[c * k + a], sy[r * k + b]];
+          }
+        }
+      }
+      if (!measured) continue;
+      cellPx.push(maxPx);
+      cellProj.push(maxProj);
+      if (maxProj > worst) {
+        worst = maxProj;
+        worstAt = at;
+        worstCell = r * cols + c;
+      }
+    }
+  }
+  const over = cellProj.filter((e) => e > tolerance).length;
+  const finiteProj = cellProj.map((e) => (Number.isFinite(e) ? e : Number.MAX_VALUE));
+  let nearEdge = false;
+  if (worstCell >= 0) {
+    const c0 = worstCell % cols;
+    const r0 = (worstCell - c0) / cols;
+    for (let dr = -2; dr <= 3 && !nearEdge; dr++)
+      for (let dc = -2; dc <= 3 && !nearEdge; dc++) {
+        const rr = r0 + dr;
+        const cc = c0 + dc;
+        if (rr >= 0 && cc >= 0 && rr < rows && cc < cols && mesh.mask[rr * cols + cc] === 0) nearEdge = true;
+      }
+  }
+  return {
+    cells: cellProj.length,
+    errorP99Projector: quantile(finiteProj, 0.99),
+    errorMaxProjector: cellProj.length ? Math.max(...finiteProj) : 0,
+    errorP99Px: quantile(cellPx, 0.99),
+    errorMaxPx: cellPx.length ? cellPx.reduce((m, x) => (x > m ? x : m), 0) : 0,
+    overTolerance: cellProj.length ? over / cellProj.length : 0,
+    worstAt,
+    worstNearEdge: nearEdge,
+  };
+}
+
+function deriv(c: { kind: Uint8Array; u: ArrayLike<number>; v: ArrayLike<number> }, m: typeof c, p: typeof c, k: number, h: number): [number, number] | null {
+  const hasM = m.kind[k] !== HitKind.MirrorMiss;
+  const hasP = p.kind[k] !== HitKind.MirrorMiss;
+  if (hasM && hasP) return [(p.u[k] - m.u[k]) / (2 * h), (p.v[k] - m.v[k]) / (2 * h)];
+  if (hasP) return [(p.u[k] - c.u[k]) / h, (p.v[k] - c.v[k]) / h];
+  if (hasM) return [(c.u[k] - m.u[k]) / h, (c.v[k] - m.v[k]) / h];
+  return null;
+}
+
+/**
+ * Bakes the mesh. With no `grid`, starts coarse and refines (bilinear error falls as the square of
+ * the cell size) until the 99th percentile of the per-cell error is within tolerance or the grid
+ * reaches `maxCols` (or one vertex per projector pixel).
+ */
+export function bakeMesh(rig: Rig, options: Partial<BakeOptions> = {}, meta: Record<string, unknown> = {}): BakeResult {
+  const o: BakeOptions = { ...BAKE_DEFAULTS, ...options };
+  const tracer = new Tracer(rig);
+  const { width: W, height: H } = tracer.frame;
+  const areaMax = referenceArea(tracer);
+  const rowsFor = (cols: number) => Math.max(2, Math.round(((cols - 1) * H) / W) + 1);
+  const limit = Math.min(o.maxCols, W + 1);
+  let cols = o.grid ? o.grid[0] : Math.min(65, limit);
+  let rows = o.grid ? o.grid[1] : rowsFor(cols);
+  let mesh: WarpMesh;
+  let accuracy: MeshAccuracy;
+  for (let iter = 0; ; iter++) {
+    mesh = buildMesh(tracer, cols, rows, o, areaMax, meta);
+    accuracy = measureAccuracy(tracer, mesh, o.masterSize, o.samplesPerCell, o.tolerance);
+    if (o.grid || accuracy.errorP99Projector <= o.tolerance || cols >= limit || iter >= 8) break;
+    const factor = Math.sqrt(accuracy.errorP99Projector / o.tolerance) * 1.15;
+    const next = Math.min(limit, Math.max(cols + 16, Math.ceil((cols - 1) * Math.min(factor, 4)) + 1));
+    cols = next;
+    rows = rowsFor(cols);
+  }
+  const n = mesh.cols * mesh.rows;
+  let lit = 0;
+  let bMin = Infinity;
+  let bMax = -Infinity;
+  for (let k = 0; k < n; k++) {
+    if (mesh.mask[k] > 0) {
+      // brightness of unlit vertices is filled from lit neighbours; only lit ones count here
+      lit++;
+      if (mesh.brightness[k] < bMin) bMin = mesh.brightness[k];
+      if (mesh.brightness[k] > bMax) bMax = mesh.brightness[k];
+    }
+  }
+  const notes: string[] = [];
+  if (accuracy.errorP99Projector > o.tolerance) {
+    notes.push(
+      `the tolerance of ${o.tolerance} projector pixel is not met over 99% of lit cells (p99 ${accuracy.errorP99Projector.toFixed(2)}); ` +
+        (o.grid ? 'use a finer --grid or drop --grid to let bake choose' : `the grid stopped at ${mesh.cols} vertices across`),
+    );
+  }
+  if (accuracy.overTolerance > 0) {
+    notes.push(
+      `${(accuracy.overTolerance * 100).toFixed(2)}% of lit cells exceed the tolerance; the worst (${fmt(accuracy.errorMaxProjector)} projector px) is at pixel ${accuracy.worstAt.map((x) => x.toFixed(0)).join(', ')}` +
+        (accuracy.worstNearEdge ? ", next to the edge of the lit area, where the light grazes the mirror's silhouette and the map's slope grows without bound" : ''),
+    );
+  }
+  return { mesh, accuracy, litFraction: lit / n, brightnessMin: lit ? bMin : 0, brightnessMax: lit ? bMax : 0, areaMax, notes, options: o };
+}
+
+function fmt(x: number): string {
+  return Number.isFinite(x) && x < 1e6 ? x.toFixed(2) : 'unbounded';
+}

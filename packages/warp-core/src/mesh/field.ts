@@ -1,0 +1,230 @@
+/**
+ * Sampled fields over the projector frame on separable grids: the trace, the dome area each pixel
+ * lights (for brightness), and the mask with an optional soft edge.
+ */
+import { HitKind, allocGridOutput, type GridOutput, type Tracer } from '../trace.js';
+
+/** Dome area lit per unit of projector pixel area, at each point of the separable grid (xs, ys). */
+export function domeAreaOnGrid(tracer: Tracer, xs: ArrayLike<number>, ys: ArrayLike<number>, h = 0.25): Float64Array {
+  const nx = xs.length;
+  const ny = ys.length;
+  const shift = (a: ArrayLike<number>, d: number) => Float64Array.from(a as ArrayLike<number>, (x) => x + d);
+  const o = { points: true };
+  const c = tracer.grid(xs, ys, allocGridOutput(nx, ny, o));
+  const xm = tracer.grid(shift(xs, -h), ys, allocGridOutput(nx, ny, o));
+  const xp = tracer.grid(shift(xs, +h), ys, allocGridOutput(nx, ny, o));
+  const ym = tracer.grid(xs, shift(ys, -h), allocGridOutput(nx, ny, o));
+  const yp = tracer.grid(xs, shift(ys, +h), allocGridOutput(nx, ny, o));
+  const area = new Float64Array(nx * ny);
+  const dx = [0, 0, 0];
+  const dy = [0, 0, 0];
+  for (let k = 0; k < nx * ny; k++) {
+    if (c.kind[k] === HitKind.MirrorMiss) {
+      area[k] = Number.NaN;
+      continue;
+    }
+    if (!difference(dx, c, xm, xp, k, h) || !difference(dy, c, ym, yp, k, h)) {
+      area[k] = Number.NaN;
+      continue;
+    }
+    // |∂D/∂x × ∂D/∂y|: the dome area of one projector pixel there
+    const cx = dx[1] * dy[2] - dx[2] * dy[1];
+    const cy = dx[2] * dy[0] - dx[0] * dy[2];
+    const cz = dx[0] * dy[1] - dx[1] * dy[0];
+    area[k] = Math.sqrt(cx * cx + cy * cy + cz * cz);
+  }
+  return area;
+}
+
+/** Central difference of the dome point, one-sided where a neighbour misses the mirror. */
+function difference(out: number[], c: GridOutput, m: GridOutput, p: GridOutput, k: number, h: number): boolean {
+  const P = c.point!;
+  const hasM = m.kind[k] !== HitKind.MirrorMiss;
+  const hasP = p.kind[k] !== HitKind.MirrorMiss;
+  const Pm = m.point!;
+  const Pp = p.point!;
+  for (let a = 0; a < 3; a++) {
+    if (hasM && hasP) out[a] = (Pp[3 * k + a] - Pm[3 * k + a]) / (2 * h);
+    else if (hasP) out[a] = (Pp[3 * k + a] - P[3 * k + a]) / h;
+    else if (hasM) out[a] = (P[3 * k + a] - Pm[3 * k + a]) / h;
+    else return false;
+  }
+  return true;
+}
+
+/** The q-quantile (0..1) of the finite values of a, by sorting a copy. */
+export function quantile(a: ArrayLike<number>, q: number): number {
+  const v: number[] = [];
+  for (let i = 0; i < a.length; i++) if (Number.isFinite(a[i])) v.push(a[i]);
+  if (v.length === 0) return Number.NaN;
+  v.sort((x, y) => x - y);
+  const pos = Math.min(v.length - 1, Math.max(0, q * (v.length - 1)));
+  const lo = Math.floor(pos);
+  const hi = Math.ceil(pos);
+  return v[lo] + (v[hi] - v[lo]) * (pos - lo);
+}
+
+export interface BrightnessOptions {
+  /** Strength s in [0, 1]: 0 = no compensation, 1 = full. */
+  strength: number;
+  /** Lowest factor allowed, so no region goes black. */
+  floor: number;
+}
+
+/**
+ * The area reference A_max of DESIGN.md "Brightness": a high percentile of the lit area over the
+ * frame, sampled on a fixed grid (every `step` pixels) so meshes and per-pixel maps agree.
+ */
+export function referenceArea(tracer: Tracer, percentile = 0.99, step = 4): number {
+  const W = tracer.frame.width;
+  const H = tracer.frame.height;
+  const xs = Float64Array.from({ length: Math.ceil(W / step) }, (_, i) => Math.min(W - 0.5, i * step + step / 2));
+  const ys = Float64Array.from({ length: Math.ceil(H / step) }, (_, j) => Math.min(H - 0.5, j * step + step / 2));
+  const g = tracer.grid(xs, ys, allocGridOutput(xs.length, ys.length));
+  const area = domeAreaOnGrid(tracer, xs, ys);
+  const used: number[] = [];
+  for (let k = 0; k < area.length; k++) if (contentVisible(tracer, g.u[k], g.v[k], g.kind[k]) && Number.isFinite(area[k])) used.push(area[k]);
+  return quantile(used, percentile);
+}
+
+/** b = (A / A_max)^s clipped to [floor, 1]: the brightest (smallest) patches are dimmed toward the dimmest. */
+export function brightnessFactor(area: number, areaMax: number, o: BrightnessOptions): number {
+  if (!Number.isFinite(area) || !(areaMax > 0)) return 1;
+  const b = Math.pow(area / areaMax, o.strength);
+  return b < o.floor ? o.floor : b > 1 ? 1 : b;
+}
+
+/** True when the content holds this point: it reached the mirror and lies within the content's fov. */
+export function contentVisible(tracer: Tracer, u: number, v: number, kind: number): boolean {
+  if (kind === HitKind.MirrorMiss) return false;
+  const du = u - 0.5;
+  const dv = v - 0.5;
+  return du * du + dv * dv <= 0.25 + 1e-12;
+}
+
+/**
+ * Soft edge: for each lit grid point, a factor rising smoothly from 0 to 1 over `featherRad` of angle
+ * on the dome, measured from the content's edge (exactly, from the fisheye radius) and from the edge
+ * of the lit region (a chamfer distance on the grid whose steps cost the angle between neighbours'
+ * directions, seen from the eye). Unlit points get 0.
+ */
+export function featherMask(g: GridOutput, fov: number, featherRad: number, lit: Uint8Array): Float32Array {
+  const { cols, rows, u, v } = g;
+  const n = cols * rows;
+  const mask = new Float32Array(n);
+  if (!(featherRad > 0)) {
+    for (let k = 0; k < n; k++) mask[k] = lit[k];
+    return mask;
+  }
+  // directions from the fisheye coordinates (equidistant: angle from zenith = ρ·fov)
+  const dir = new Float64Array(3 * n);
+  for (let k = 0; k < n; k++) {
+    if (!lit[k]) continue;
+    const x = u[k] - 0.5;
+    const y = v[k] - 0.5;
+    const rho = Math.hypot(x, y);
+    const th = rho * fov;
+    const s = rho > 0 ? Math.sin(th) / rho : 0;
+    dir[3 * k] = x * s;
+    dir[3 * k + 1] = y * s;
+    dir[3 * k + 2] = Math.cos(th);
+  }
+  const dist = new Float64Array(n).fill(Infinity);
+  for (let j = 0; j < rows; j++) {
+    for (let i = 0; i < cols; i++) {
+      const k = j * cols + i;
+      if (!lit[k]) continue;
+      let edge = i === 0 || j === 0 || i === cols - 1 || j === rows - 1;
+      for (let dj = -1; dj <= 1 && !edge; dj++) for (let di = -1; di <= 1 && !edge; di++) if (!lit[k + dj * cols + di]) edge = true;
+      if (edge && !(i === 0 || j === 0 || i === cols - 1 || j === rows - 1)) dist[k] = 0;
+      else if (edge) dist[k] = Infinity; // the frame's own border is not an edge of the picture
+    }
+  }
+  const angle = (a: number, b: number) => {
+    const d = dir[3 * a] * dir[3 * b] + dir[3 * a + 1] * dir[3 * b + 1] + dir[3 * a + 2] * dir[3 * b + 2];
+    return Math.acos(d > 1 ? 1 : d < -1 ? -1 : d);
+  };
+  const relax = (k: number, m: number) => {
+    if (lit[m] && dist[m] + 0 < dist[k]) {
+      const c = dist[m] + angle(k, m);
+      if (c < dist[k]) dist[k] = c;
+    }
+  };
+  for (let pass = 0; pass < 2; pass++) {
+    for (let j = 0; j < rows; j++)
+      for (let i = 0; i < cols; i++) {
+        const k = j * cols + i;
+        if (!lit[k]) continue;
+        if (i > 0) relax(k, k - 1);
+        if (j > 0) {
+          relax(k, k - cols);
+          if (i > 0) relax(k, k - cols - 1);
+          if (i < cols - 1) relax(k, k - cols + 1);
+        }
+      }
+    for (let j = rows - 1; j >= 0; j--)
+      for (let i = cols - 1; i >= 0; i--) {
+        const k = j * cols + i;
+        if (!lit[k]) continue;
+        if (i < cols - 1) relax(k, k + 1);
+        if (j < rows - 1) {
+          relax(k, k + cols);
+          if (i < cols - 1) relax(k, k + cols + 1);
+          if (i > 0) relax(k, k + cols - 1);
+        }
+      }
+  }
+  for (let k = 0; k < n; k++) {
+    if (!lit[k]) continue;
+    const rim = fov / 2 - Math.hypot(u[k] - 0.5, v[k] - 0.5) * fov;
+    const d = Math.min(dist[k], rim);
+    const t = d >= featherRad ? 1 : d <= 0 ? 0 : d / featherRad;
+    mask[k] = t * t * (3 - 2 * t); // smoothstep
+  }
+  return mask;
+}
+
+/**
+ * Gives unlit grid points finite values (u, v, brightness) by repeatedly averaging lit (or already filled) neighbours, so
+ * a GPU interpolating across a cell at the edge samples nearby content instead of junk.
+ */
+export function fillUnlit(cols: number, rows: number, known: Uint8Array, ...fields: (Float32Array | Float64Array)[]): void {
+  const n = cols * rows;
+  const have = Uint8Array.from(known);
+  let frontier: number[] = [];
+  for (let k = 0; k < n; k++) if (!have[k]) frontier.push(k);
+  if (!have.some((x) => x === 1)) {
+    for (const f of fields) f.fill(0.5);
+    return;
+  }
+  const sums = new Float64Array(fields.length);
+  while (frontier.length > 0) {
+    const next: number[] = [];
+    const filled: [number, number[]][] = [];
+    for (const k of frontier) {
+      const i = k % cols;
+      const j = (k - i) / cols;
+      sums.fill(0);
+      let c = 0;
+      for (let dj = -1; dj <= 1; dj++)
+        for (let di = -1; di <= 1; di++) {
+          const ii = i + di;
+          const jj = j + dj;
+          if (ii < 0 || jj < 0 || ii >= cols || jj >= rows) continue;
+          const m = jj * cols + ii;
+          if (have[m]) {
+            for (let f = 0; f < fields.length; f++) sums[f] += fields[f][m];
+            c++;
+          }
+        }
+      if (c > 0) filled.push([k, Array.from(sums, (s) => s / c)]);
+      else next.push(k);
+    }
+    for (const [k, vals] of filled) {
+      for (let f = 0; f < fields.length; f++) fields[f][k] = vals[f];
+      have[k] = 1;
+    }
+    if (filled.length === 0) break;
+    frontier = next;
+  }
+}

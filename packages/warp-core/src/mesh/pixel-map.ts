@@ -1,0 +1,126 @@
+/**
+ * The exact per-pixel map for batch warping: every projector pixel centre traced, with its
+ * brightness factor and mask, as a RemapMap in dome-master pixel units.
+ */
+import { DEG } from '../math.js';
+import type { Rig } from '../rig.js';
+import type { RemapMap } from '../remap/types.js';
+import { HitKind, Tracer } from '../trace.js';
+import { BAKE_DEFAULTS, type BakeOptions } from './bake.js';
+import { brightnessFactor, contentVisible, domeAreaOnGrid, featherMask, referenceArea } from './field.js';
+import type { WarpMesh } from './mesh.js';
+
+export type MapOptions = Pick<BakeOptions, 'brightness' | 'brightnessFloor' | 'feather'>;
+
+/** How the source frame is turned before sampling (content that arrives mirrored or rotated). */
+export interface SourceOrientation {
+  /** Mirror the frame left-right before use. */
+  flip?: boolean;
+  /** Turn the frame clockwise by this many degrees (0, 90, 180, 270) before use. */
+  rotate?: 0 | 90 | 180 | 270;
+}
+
+/**
+ * Normalized fisheye (u, v) of our convention → (u, v) in a source frame that arrives flipped and/or
+ * rotated: the frame as delivered, turned clockwise by `rotate` and then mirrored if `flip`, would be
+ * in our convention. Returned in place.
+ */
+export function orientUv(uv: [number, number], o: SourceOrientation): [number, number] {
+  let [u, v] = uv;
+  if (o.flip) u = 1 - u;
+  switch (o.rotate ?? 0) {
+    case 90: // delivered frame turned clockwise by 90° gives ours: ours (u, v) came from (v, 1 − u)
+      [u, v] = [v, 1 - u];
+      break;
+    case 180:
+      [u, v] = [1 - u, 1 - v];
+      break;
+    case 270:
+      [u, v] = [1 - v, u];
+      break;
+  }
+  uv[0] = u;
+  uv[1] = v;
+  return uv;
+}
+
+function finishMap(u: ArrayLike<number>, v: ArrayLike<number>, gain: Float32Array, size: [number, number], o: SourceOrientation, W: number, H: number): RemapMap {
+  const n = W * H;
+  const x = new Float32Array(n);
+  const y = new Float32Array(n);
+  const uv: [number, number] = [0, 0];
+  const [sw, sh] = size;
+  for (let k = 0; k < n; k++) {
+    if (!(gain[k] > 0)) {
+      x[k] = Number.NaN;
+      y[k] = Number.NaN;
+      continue;
+    }
+    uv[0] = u[k];
+    uv[1] = v[k];
+    if (o.flip || o.rotate) orientUv(uv, o);
+    x[k] = uv[0] * sw;
+    y[k] = uv[1] * sh;
+  }
+  return { width: W, height: H, x, y, gain };
+}
+
+/** Traces every projector pixel of the rig: the exact RemapMap onto a source frame of `size` pixels. */
+export function pixelMapFromRig(rig: Rig, size: [number, number], options: Partial<MapOptions> & SourceOrientation = {}): RemapMap {
+  const o = { ...BAKE_DEFAULTS, ...options };
+  const tracer = new Tracer(rig);
+  const { width: W, height: H } = tracer.frame;
+  const xs = Float64Array.from({ length: W }, (_, i) => i + 0.5);
+  const ys = Float64Array.from({ length: H }, (_, j) => j + 0.5);
+  const g = tracer.frameGrid({});
+  const lit = new Uint8Array(W * H);
+  for (let k = 0; k < W * H; k++) lit[k] = contentVisible(tracer, g.u[k], g.v[k], g.kind[k]) ? 1 : 0;
+  const mask = featherMask(g, rig.content.fov, o.feather * DEG, lit);
+  const gain = new Float32Array(W * H);
+  if (o.brightness > 0) {
+    const areaMax = referenceArea(tracer);
+    const area = domeAreaOnGrid(tracer, xs, ys);
+    const bo = { strength: o.brightness, floor: o.brightnessFloor };
+    for (let k = 0; k < W * H; k++) gain[k] = mask[k] > 0 ? mask[k] * brightnessFactor(area[k], areaMax, bo) : 0;
+  } else {
+    for (let k = 0; k < W * H; k++) gain[k] = mask[k];
+  }
+  void HitKind;
+  return finishMap(g.u, g.v, gain, size, o, W, H);
+}
+
+/** Interpolates a baked mesh bilinearly at every projector pixel centre: the RemapMap the mesh implies. */
+export function pixelMapFromMesh(mesh: WarpMesh, size: [number, number], o: SourceOrientation = {}): RemapMap {
+  const { cols, rows, width: W, height: H } = mesh;
+  const n = W * H;
+  const u = new Float32Array(n);
+  const v = new Float32Array(n);
+  const gain = new Float32Array(n);
+  const sx = (cols - 1) / W;
+  const sy = (rows - 1) / H;
+  for (let j = 0; j < H; j++) {
+    const gy = (j + 0.5) * sy;
+    const r = Math.min(rows - 2, Math.floor(gy));
+    const fy = gy - r;
+    for (let i = 0; i < W; i++) {
+      const gx = (i + 0.5) * sx;
+      const c = Math.min(cols - 2, Math.floor(gx));
+      const fx = gx - c;
+      const k00 = r * cols + c;
+      const k10 = k00 + 1;
+      const k01 = k00 + cols;
+      const k11 = k01 + 1;
+      const w00 = (1 - fx) * (1 - fy);
+      const w10 = fx * (1 - fy);
+      const w01 = (1 - fx) * fy;
+      const w11 = fx * fy;
+      const k = j * W + i;
+      u[k] = w00 * mesh.u[k00] + w10 * mesh.u[k10] + w01 * mesh.u[k01] + w11 * mesh.u[k11];
+      v[k] = w00 * mesh.v[k00] + w10 * mesh.v[k10] + w01 * mesh.v[k01] + w11 * mesh.v[k11];
+      const m = w00 * mesh.mask[k00] + w10 * mesh.mask[k10] + w01 * mesh.mask[k01] + w11 * mesh.mask[k11];
+      const b = w00 * mesh.brightness[k00] + w10 * mesh.brightness[k10] + w01 * mesh.brightness[k01] + w11 * mesh.brightness[k11];
+      gain[k] = m > 0 ? m * b : 0;
+    }
+  }
+  return finishMap(u, v, gain, size, o, W, H);
+}
