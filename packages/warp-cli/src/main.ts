@@ -1,20 +1,23 @@
 /** The `skyfold` command: builds the program, runs it, and turns user errors into one line and exit 2. */
 import { Command, CommanderError } from 'commander';
+import { registerBake } from './commands/bake.js';
 import { registerInit } from './commands/init.js';
 import { registerLocate } from './commands/locate.js';
 import { registerProbe } from './commands/probe.js';
 import { UserError } from './errors.js';
+import { VERSION } from './version.js';
 
 export function buildProgram(): Command {
   const program = new Command('skyfold')
     .description('Pre-warp fulldome frames for a projector bounced off a spherical mirror in a dome.')
-    .version('0.1.0')
+    .version(VERSION)
     .showSuggestionAfterError(true)
     .exitOverride()
     .configureOutput({ outputError: (str, write) => write(str.split('\n')[0] + '\n') });
   registerInit(program);
   registerProbe(program);
   registerLocate(program);
+  registerBake(program);
   for (const c of program.commands) c.exitOverride();
   return program;
 }

@@ -1,0 +1,130 @@
+/** `skyfold bake`: the warp mesh, with its measured accuracy, in open formats. */
+import { mkdirSync, renameSync, writeFileSync } from 'node:fs';
+import { dirname, basename, join } from 'node:path';
+import { InvalidArgumentError, type Command } from 'commander';
+import { BAKE_DEFAULTS, bakeMesh, rigToDocument, type BakeResult } from '@skyfold/warp-core';
+import { loadRig } from '../document-file.js';
+import { UserError } from '../errors.js';
+import { encodeMesh, formatFromPath, MESH_FORMATS, type MeshFormat } from '../export/index.js';
+import { printJson } from '../format.js';
+import { collect, parseNumberIn, parsePositiveInt } from '../options.js';
+import { warn } from '../messages.js';
+import { VERSION } from '../version.js';
+
+function parseGrid(s: string): [number, number] {
+  const m = /^\s*(\d+)\s*[xX×]\s*(\d+)\s*$/.exec(s);
+  if (!m || Number(m[1]) < 2 || Number(m[2]) < 2) throw new InvalidArgumentError(`expected COLSxROWS with at least 2 each (e.g. 321x201), got "${s}"`);
+  return [Number(m[1]), Number(m[2])];
+}
+
+/** Writes bytes atomically: a temporary file beside the target, then a rename. */
+export function writeFileAtomic(path: string, bytes: Uint8Array | string): void {
+  const dir = dirname(path);
+  mkdirSync(dir, { recursive: true });
+  const tmp = join(dir, `.${basename(path)}.${process.pid}.partial`);
+  writeFileSync(tmp, bytes);
+  renameSync(tmp, path);
+}
+
+export interface BakeCliOptions {
+  output: string[];
+  format?: MeshFormat;
+  grid?: [number, number];
+  tolerance: number;
+  masterSize: number;
+  brightness: number;
+  brightnessFloor: number;
+  feather: number;
+  json?: boolean;
+}
+
+/** The bake summary as printed by --json (stable keys). */
+export function bakeSummary(r: BakeResult, files: string[]): Record<string, unknown> {
+  const a = r.accuracy;
+  return {
+    grid: [r.mesh.cols, r.mesh.rows],
+    litFraction: r.litFraction,
+    errorP99Projector: a.errorP99Projector,
+    errorMaxProjector: a.errorMaxProjector,
+    errorP99Px: a.errorP99Px,
+    errorMaxPx: a.errorMaxPx,
+    brightnessMin: r.brightnessMin,
+    brightnessMax: r.brightnessMax,
+    files,
+    tolerance: r.options.tolerance,
+    masterSize: r.options.masterSize,
+    cellsMeasured: a.cells,
+    cellsOverTolerance: a.overTolerance,
+    worstAt: a.worstAt,
+    notes: r.notes,
+  };
+}
+
+export function registerBake(program: Command): void {
+  program
+    .command('bake')
+    .description('bake the warp mesh (fisheye u, v + brightness + mask per vertex) and write it in open formats')
+    .argument('<rig>', 'rig file (YAML or JSON)')
+    .requiredOption('-o, --output <file>', `output file, repeatable; format from the extension (${MESH_FORMATS.map((f) => '.' + f).join(' ')})`, collect((s) => s))
+    .option('--format <format>', 'format for every -o file, overriding the extensions', (s) => {
+      if (!(MESH_FORMATS as readonly string[]).includes(s)) throw new InvalidArgumentError(`expected one of ${MESH_FORMATS.join(', ')}, got "${s}"`);
+      return s as MeshFormat;
+    })
+    .option('--grid <colsxrows>', 'vertices across and down (default: chosen to meet --tolerance)', parseGrid)
+    .option('--tolerance <px>', 'largest interpolation error over 99% of lit cells, in projector pixels', parseNumberIn(1e-3, 100), BAKE_DEFAULTS.tolerance)
+    .option('--master-size <n>', 'dome-master size the errors in dome-master pixels refer to', (s) => parsePositiveInt(s), BAKE_DEFAULTS.masterSize)
+    .option('--brightness <s>', 'brightness compensation strength, 0 (off) to 1 (full)', parseNumberIn(0, 1), BAKE_DEFAULTS.brightness)
+    .option('--brightness-floor <f>', 'lowest brightness factor, so no region goes black', parseNumberIn(0, 1), BAKE_DEFAULTS.brightnessFloor)
+    .option('--feather <deg>', 'soft edge width on the dome in degrees at the mirror rim and the content edge', parseNumberIn(0, 90), BAKE_DEFAULTS.feather)
+    .option('--json', 'machine-readable summary')
+    .addHelpText('after', '\nExamples:\n  skyfold bake rig.yaml -o mesh.glb\n  skyfold bake rig.yaml -o mesh.glb -o mesh.mpcdi -o mesh.csv --feather 2\n  skyfold bake rig.yaml -o mesh.glb --grid 321x201 --json')
+    .action(async (rigPath: string, opts: BakeCliOptions) => {
+      const { rig, warnings } = loadRig(rigPath);
+      warnings.forEach(warn);
+      const targets = opts.output.map((path) => {
+        const format = opts.format ?? formatFromPath(path);
+        if (!format) throw new UserError(`${path}: cannot tell the mesh format from the extension (expected ${MESH_FORMATS.map((f) => '.' + f).join(', ')}, or give --format)`);
+        return { path, format };
+      });
+      if (opts.grid && (opts.grid[0] > rig.projector.resolution[0] + 1 || opts.grid[1] > rig.projector.resolution[1] + 1)) {
+        throw new UserError(`--grid: at most one vertex per projector pixel (${rig.projector.resolution[0] + 1}x${rig.projector.resolution[1] + 1}), got ${opts.grid.join('x')}`);
+      }
+      const settings = {
+        grid: opts.grid,
+        tolerance: opts.tolerance,
+        masterSize: opts.masterSize,
+        brightness: opts.brightness,
+        brightnessFloor: opts.brightnessFloor,
+        feather: opts.feather,
+      };
+      const meta = { generator: `skyfold ${VERSION}`, rig: rigToDocument(rig), bake: settings as Record<string, unknown> };
+      const result = bakeMesh(rig, settings, meta);
+      meta.bake = { ...settings, grid: [result.mesh.cols, result.mesh.rows], accuracy: result.accuracy, areaMax: result.areaMax };
+      for (const t of targets) {
+        const bytes = await encodeMesh(result.mesh, t.format);
+        try {
+          writeFileAtomic(t.path, bytes);
+        } catch (e) {
+          throw new UserError(`${t.path}: cannot write: ${(e as Error).message}`);
+        }
+      }
+      const summary = bakeSummary(result, targets.map((t) => t.path));
+      if (opts.json) {
+        printJson(summary);
+        return;
+      }
+      const a = result.accuracy;
+      const f = (x: number) => (Number.isFinite(x) ? x.toFixed(3) : 'unbounded');
+      const lines = [
+        `grid            ${result.mesh.cols} x ${result.mesh.rows} vertices (${a.cells} lit cells measured)`,
+        `lit vertices    ${(result.litFraction * 100).toFixed(1)}%`,
+        `error, p99      ${f(a.errorP99Projector)} projector px   ${f(a.errorP99Px)} dome-master px (N = ${opts.masterSize})`,
+        `error, max      ${f(a.errorMaxProjector)} projector px   ${f(a.errorMaxPx)} dome-master px`,
+        `tolerance       ${opts.tolerance} projector px; ${(a.overTolerance * 100).toFixed(2)}% of lit cells exceed it`,
+        `brightness      ${result.brightnessMin.toFixed(3)} .. ${result.brightnessMax.toFixed(3)} (strength ${opts.brightness}, floor ${opts.brightnessFloor})`,
+        ...result.notes.map((n) => `note            ${n}`),
+        ...targets.map((t) => `wrote           ${t.path} (${t.format})`),
+      ];
+      process.stdout.write(lines.join('\n') + '\n');
+    });
+}

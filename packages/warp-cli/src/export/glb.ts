@@ -1,0 +1,156 @@
+/**
+ * glTF 2.0 binary (.glb), skyfold's native warp mesh (Khronos glTF 2.0 specification).
+ *
+ * One scene, one node, one mesh, one triangle primitive:
+ * - POSITION   FLOAT VEC3: projector position in normalized device coordinates,
+ *              x = 2·px/width − 1 (right), y = 1 − 2·py/height (up), z = 0.
+ * - TEXCOORD_0 FLOAT VEC2: fisheye (u, v) as stored, u right, v down — glTF's UV origin is the
+ *              top-left corner, which is our convention, so there is no flip.
+ * - COLOR_0    FLOAT VEC4: (brightness, brightness, brightness, mask). Unlit points keep their u, v.
+ * - indices: two triangles per grid cell, counter-clockwise seen from +z (front faces face a camera
+ *   looking down −z); UNSIGNED_SHORT when every index fits, else UNSIGNED_INT.
+ * - material: unlit (KHR_materials_unlit), double sided.
+ * - root `extras`: mesh.meta plus `skyfoldMesh` {version, cols, rows, width, height}, from which the
+ *   reader rebuilds the grid. Vertices are in grid order, the top row of the projector frame first.
+ */
+import { Document, Extension, NodeIO, type ReaderContext, type WriterContext } from '@gltf-transform/core';
+import type { WarpMesh } from '@skyfold/warp-core';
+
+/** Root-extras key holding the grid description; the rest of extras is mesh.meta. */
+export const GLB_GRID_KEY = 'skyfoldMesh';
+const GRID_VERSION = 1;
+
+/** Marks every material unlit (KHR_materials_unlit has no properties of its own). */
+class MaterialsUnlit extends Extension {
+  static override EXTENSION_NAME = 'KHR_materials_unlit';
+  override readonly extensionName = 'KHR_materials_unlit';
+  read(_context: ReaderContext): this {
+    return this;
+  }
+  write(context: WriterContext): this {
+    for (const material of context.jsonDoc.json.materials ?? []) {
+      material.extensions = { ...material.extensions, KHR_materials_unlit: {} };
+    }
+    return this;
+  }
+}
+
+function createIO(): NodeIO {
+  return new NodeIO().registerExtensions([MaterialsUnlit]);
+}
+
+/** Index list for the grid: cell (c, r) → (tl, bl, br), (tl, br, tr), counter-clockwise seen from +z. */
+export function gridTriangles(cols: number, rows: number): Uint32Array {
+  const out = new Uint32Array((cols - 1) * (rows - 1) * 6);
+  let k = 0;
+  for (let r = 0; r + 1 < rows; r++) {
+    for (let c = 0; c + 1 < cols; c++) {
+      const tl = r * cols + c;
+      const tr = tl + 1;
+      const bl = tl + cols;
+      const br = bl + 1;
+      out[k++] = tl;
+      out[k++] = bl;
+      out[k++] = br;
+      out[k++] = tl;
+      out[k++] = br;
+      out[k++] = tr;
+    }
+  }
+  return out;
+}
+
+export async function writeGlb(mesh: WarpMesh): Promise<Uint8Array> {
+  const { cols, rows, width, height } = mesh;
+  const n = cols * rows;
+  const position = new Float32Array(n * 3);
+  const texcoord = new Float32Array(n * 2);
+  const color = new Float32Array(n * 4);
+  for (let r = 0; r < rows; r++) {
+    for (let c = 0; c < cols; c++) {
+      const i = r * cols + c;
+      position[i * 3] = (2 * c) / (cols - 1) - 1;
+      position[i * 3 + 1] = 1 - (2 * r) / (rows - 1);
+      texcoord[i * 2] = mesh.u[i];
+      texcoord[i * 2 + 1] = mesh.v[i];
+      color[i * 4] = color[i * 4 + 1] = color[i * 4 + 2] = mesh.brightness[i];
+      color[i * 4 + 3] = mesh.mask[i];
+    }
+  }
+  const triangles = gridTriangles(cols, rows);
+  // 65535 is the primitive-restart value, which glTF forbids as an index.
+  const indices = n - 1 < 65535 ? Uint16Array.from(triangles) : triangles;
+
+  const doc = new Document();
+  doc.createExtension(MaterialsUnlit);
+  doc.getRoot().getAsset().generator = 'skyfold';
+  doc.getRoot().setExtras({ ...mesh.meta, [GLB_GRID_KEY]: { version: GRID_VERSION, cols, rows, width, height } });
+  const buffer = doc.createBuffer();
+  const material = doc.createMaterial('warp').setDoubleSided(true).setBaseColorFactor([1, 1, 1, 1]);
+  const primitive = doc
+    .createPrimitive()
+    .setAttribute('POSITION', doc.createAccessor('position').setType('VEC3').setArray(position).setBuffer(buffer))
+    .setAttribute('TEXCOORD_0', doc.createAccessor('fisheye').setType('VEC2').setArray(texcoord).setBuffer(buffer))
+    .setAttribute('COLOR_0', doc.createAccessor('brightness-mask').setType('VEC4').setArray(color).setBuffer(buffer))
+    .setIndices(doc.createAccessor('indices').setType('SCALAR').setArray(indices).setBuffer(buffer))
+    .setMaterial(material);
+  const node = doc.createNode('warp-mesh').setMesh(doc.createMesh('warp-mesh').addPrimitive(primitive));
+  doc.getRoot().setDefaultScene(doc.createScene('skyfold').addChild(node));
+  return createIO().writeBinary(doc);
+}
+
+/** Reads a .glb written by {@link writeGlb}; throws a clear Error for any other glb. */
+export async function readGlb(bytes: Uint8Array): Promise<WarpMesh> {
+  let doc: Document;
+  try {
+    doc = await createIO().readBinary(bytes);
+  } catch (err) {
+    throw new Error(`Expected a glTF binary (.glb) warp mesh but could not read it: ${(err as Error).message}`);
+  }
+  const extras = { ...(doc.getRoot().getExtras() as Record<string, unknown>) };
+  const grid = extras[GLB_GRID_KEY] as { version?: unknown; cols?: unknown; rows?: unknown; width?: unknown; height?: unknown } | undefined;
+  if (!grid || typeof grid !== 'object') throw new Error(`Expected a skyfold warp mesh glb (root extras.${GLB_GRID_KEY}) but found none`);
+  if (grid.version !== GRID_VERSION) throw new Error(`Expected skyfold warp mesh version ${GRID_VERSION} but received ${String(grid.version)}`);
+  const { cols, rows, width, height } = grid;
+  if (!isInt2(cols) || !isInt2(rows) || !isPositive(width) || !isPositive(height)) {
+    throw new Error(`Expected extras.${GLB_GRID_KEY} with integer cols, rows ≥ 2 and positive width, height`);
+  }
+  delete extras[GLB_GRID_KEY];
+
+  const primitives = doc.getRoot().listMeshes().flatMap((m) => m.listPrimitives());
+  if (primitives.length !== 1) throw new Error(`Expected one mesh primitive in the skyfold glb but found ${primitives.length}`);
+  const prim = primitives[0];
+  const n = cols * rows;
+  const attr = (name: string, size: number): Float32Array => {
+    const acc = prim.getAttribute(name);
+    const arr = acc?.getArray();
+    if (!acc || !(arr instanceof Float32Array) || acc.getElementSize() !== size || acc.getCount() !== n) {
+      throw new Error(`Expected ${name} as ${n} float VEC${size} in the skyfold glb`);
+    }
+    return arr;
+  };
+  const position = attr('POSITION', 3);
+  const texcoord = attr('TEXCOORD_0', 2);
+  const color = attr('COLOR_0', 4);
+  const mesh: WarpMesh = { cols, rows, width, height, u: new Float32Array(n), v: new Float32Array(n), brightness: new Float32Array(n), mask: new Float32Array(n), meta: extras };
+  for (let r = 0; r < rows; r++) {
+    for (let c = 0; c < cols; c++) {
+      const i = r * cols + c;
+      const dx = position[i * 3] - ((2 * c) / (cols - 1) - 1);
+      const dy = position[i * 3 + 1] - (1 - (2 * r) / (rows - 1));
+      if (Math.abs(dx) > 1e-5 || Math.abs(dy) > 1e-5) throw new Error(`Expected vertex ${i} of the skyfold glb at grid column ${c}, row ${r} but it is elsewhere`);
+      mesh.u[i] = texcoord[i * 2];
+      mesh.v[i] = texcoord[i * 2 + 1];
+      mesh.brightness[i] = color[i * 4];
+      mesh.mask[i] = color[i * 4 + 3];
+    }
+  }
+  return mesh;
+}
+
+function isInt2(x: unknown): x is number {
+  return typeof x === 'number' && Number.isInteger(x) && x >= 2;
+}
+function isPositive(x: unknown): x is number {
+  return typeof x === 'number' && Number.isFinite(x) && x > 0;
+}

@@ -1,0 +1,73 @@
+/** Warp mesh files: one module per format, and a format-by-name front door for the CLI. */
+import type { WarpMesh } from '@skyfold/warp-core';
+import { readCsv, writeCsv } from './csv.js';
+import { readGlb, writeGlb } from './glb.js';
+import { readMpcdi, writeMpcdi, type MpcdiOptions } from './mpcdi.js';
+import { readObj, writeObj } from './obj.js';
+import { readMeshPfm, writeMeshPfm } from './pfm.js';
+import { readMapPng, writeMapPng } from './png16.js';
+
+export * from './csv.js';
+export * from './glb.js';
+export * from './mpcdi.js';
+export * from './obj.js';
+export * from './pfm.js';
+export * from './png16.js';
+
+export type MeshFormat = 'glb' | 'obj' | 'pfm' | 'mpcdi' | 'png' | 'csv';
+
+export const MESH_FORMATS: readonly MeshFormat[] = ['glb', 'obj', 'pfm', 'mpcdi', 'png', 'csv'];
+
+/** The format a file name's extension names (case-insensitive), or undefined. */
+export function formatFromPath(path: string): MeshFormat | undefined {
+  const ext = /\.([A-Za-z0-9]+)$/.exec(path)?.[1]?.toLowerCase();
+  return ext !== undefined && (MESH_FORMATS as readonly string[]).includes(ext) ? (ext as MeshFormat) : undefined;
+}
+
+export interface EncodeMeshOptions {
+  mpcdi?: MpcdiOptions;
+}
+
+/** The mesh as the bytes of a file in the given format (text formats UTF-8). */
+export async function encodeMesh(mesh: WarpMesh, format: MeshFormat, options: EncodeMeshOptions = {}): Promise<Uint8Array> {
+  switch (format) {
+    case 'glb':
+      return writeGlb(mesh);
+    case 'obj':
+      return new TextEncoder().encode(writeObj(mesh));
+    case 'pfm':
+      return writeMeshPfm(mesh);
+    case 'mpcdi':
+      return writeMpcdi(mesh, options.mpcdi);
+    case 'png':
+      return writeMapPng(mesh);
+    case 'csv':
+      return new TextEncoder().encode(writeCsv(mesh));
+    default:
+      throw new Error(`Expected a mesh format (${MESH_FORMATS.join(', ')}) but received ${String(format)}`);
+  }
+}
+
+/**
+ * Reads a mesh file. glb, obj and csv come back whole; pfm and png lack the projector resolution
+ * (width/height = cols−1/rows−1) and meta; png is quantised to 1/65535; mpcdi gives u, v exactly but
+ * brightness and mask only as sampled from its alpha map.
+ */
+export async function decodeMesh(bytes: Uint8Array, format: MeshFormat): Promise<WarpMesh> {
+  switch (format) {
+    case 'glb':
+      return readGlb(bytes);
+    case 'obj':
+      return readObj(new TextDecoder().decode(bytes));
+    case 'pfm':
+      return readMeshPfm(bytes);
+    case 'mpcdi':
+      return (await readMpcdi(bytes)).mesh;
+    case 'png':
+      return readMapPng(bytes);
+    case 'csv':
+      return readCsv(new TextDecoder().decode(bytes));
+    default:
+      throw new Error(`Expected a mesh format (${MESH_FORMATS.join(', ')}) but received ${String(format)}`);
+  }
+}

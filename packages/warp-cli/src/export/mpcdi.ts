@@ -1,0 +1,213 @@
+/**
+ * VESA MPCDI 2.0 (Multiple Projection Common Data Interchange) package, "2d" profile: a ZIP holding
+ * `mpcdi.xml`, a geometry warp PFM and an alpha map PNG, for one buffer with one region (the projector).
+ *
+ * What this follows, and from where (the VESA text itself was not available to read; see below):
+ * - Element and attribute names and casing: root `MPCDI` with `profile`, `geometry`, `version`, `date`;
+ *   `display` > `buffer id xResolution yResolution` > `region id xResolution yResolution x y xsize ysize`;
+ *   `files` > `fileset region` > `geometryWarpFile` (`path`, `interpolation`) and `alphaMap` (`path`,
+ *   `componentDepth`, `bitDepth`, `gammaEmbedded`). Taken from public MPCDI 2.0 readers and files:
+ *   the open-source SGCT toolkit's MPCDI reader (buffer/region xResolution, fileset region=,
+ *   geometryWarpFile path + interpolation "linear"), the BSD-licensed MPCDI reference library
+ *   (element names, alphaMap children, archive entry "mpcdi.xml", region x/y/xsize/ysize), and a
+ *   published MPCDI 2.0 example file (xResolution casing on region, alphaMap children).
+ * - Warp PFM rows: the first row is the TOP of the region — the MPCDI text's order as DESIGN.md records
+ *   it, and what SGCT's reader states ("raster-scan order ... starts at upper-left"). This differs from
+ *   netpbm's PFM definition (rows bottom to top), so this file encodes with rowOrder 'top-down'.
+ * - 2d profile warp values: per grid point, the normalized content coordinate that the projector shows
+ *   there; the third channel is unused in 2d (written 0; the public 2d readers seen ignore it).
+ *   Here the content is the fisheye dome master, so the values are the mesh's (u, v), u right, v down.
+ *
+ * Not confirmed from the standard text (public readers disagree or are silent):
+ * - that the content coordinate's y axis points down (origin top-left) as ours does;
+ * - whether grid points span the region corner to corner (this writer: point (c, r) sits at
+ *   c/(cols−1), r/(rows−1) of the region, as skyfold's mesh does) or sit at cell centres;
+ * - the `geometry` level value for 2d (written "1");
+ * - whether 2d files also need `geometricUnit`/`originOf3DData` (omitted: they describe 3D data);
+ * - the exact meaning of `gammaEmbedded`: written 1.0 with alpha values in linear light, i.e. the
+ *   alpha value is the linear-light factor the pixel is multiplied by (brightness·mask);
+ * - how unlit points should be marked in the warp file: they keep their finite (u, v); the alpha map is
+ *   0 there (some readers treat NaN or (0, 0, 0) as "no data").
+ * The MPCDI reference library's own PFM I/O writes rows bottom to top relative to its memory layout
+ * (its in-memory origin may be at the bottom); we follow the text's top-down order. That library
+ * (MPCDI 1.0 era) also spells the resolution attributes "Xresolution"; 2.0 files use "xResolution".
+ */
+import { strToU8, strFromU8, unzipSync, zipSync } from 'fflate';
+import sharp from 'sharp';
+import type { WarpMesh } from '@skyfold/warp-core';
+import { decodePfm, encodePfm } from './pfm.js';
+import { encodePng16 } from './png16.js';
+
+export interface MpcdiOptions {
+  /** Buffer id (default "skyfold"). */
+  bufferId?: string;
+  /** Region id, one projector (default "projector"). */
+  regionId?: string;
+  /** Alpha map sample depth (default 8, the most widely read). */
+  alphaBitDepth?: 8 | 16;
+  /** Timestamp for the `date` attribute and the ZIP entries (default now). */
+  date?: Date;
+}
+
+export const MPCDI_DEFAULTS: Required<Omit<MpcdiOptions, 'date'>> = { bufferId: 'skyfold', regionId: 'projector', alphaBitDepth: 8 };
+
+export async function writeMpcdi(mesh: WarpMesh, options: MpcdiOptions = {}): Promise<Uint8Array> {
+  const opts = { ...MPCDI_DEFAULTS, ...options };
+  const date = options.date ?? new Date();
+  const xRes = Math.round(mesh.width);
+  const yRes = Math.round(mesh.height);
+  if (xRes < 1 || yRes < 1) throw new Error(`Expected a projector resolution of at least 1×1 for MPCDI but received ${mesh.width}×${mesh.height}`);
+  const warpPath = `warp-${safeName(opts.regionId)}.pfm`;
+  const alphaPath = `alpha-${safeName(opts.regionId)}.png`;
+
+  const n = mesh.cols * mesh.rows;
+  const warp = new Float32Array(n * 3);
+  for (let i = 0; i < n; i++) {
+    warp[i * 3] = mesh.u[i];
+    warp[i * 3 + 1] = mesh.v[i];
+  }
+  // MPCDI 2.0 (VESA): first row of the warp file = top of the region, unlike netpbm.
+  const warpPfm = encodePfm({ width: mesh.cols, height: mesh.rows, channels: 3, data: warp }, { rowOrder: 'top-down' });
+  const alphaPng = await encodeAlphaMap(mesh, xRes, yRes, opts.alphaBitDepth);
+
+  const stamp = date.toISOString().slice(0, 19).replace('T', ' ');
+  const xml = [
+    '<?xml version="1.0" encoding="utf-8"?>',
+    `<MPCDI profile="2d" geometry="1" version="2.0" date="${stamp}">`,
+    '  <!-- written by skyfold: warp = fisheye (dome master) u, v per grid point, top row first; alpha = brightness*mask, linear light -->',
+    '  <display>',
+    `    <buffer id="${xmlEscape(opts.bufferId)}" xResolution="${xRes}" yResolution="${yRes}">`,
+    `      <region id="${xmlEscape(opts.regionId)}" xResolution="${xRes}" yResolution="${yRes}" x="0" y="0" xsize="1" ysize="1"/>`,
+    '    </buffer>',
+    '  </display>',
+    '  <files>',
+    `    <fileset region="${xmlEscape(opts.regionId)}">`,
+    '      <geometryWarpFile>',
+    `        <path>${warpPath}</path>`,
+    '        <interpolation>linear</interpolation>',
+    '      </geometryWarpFile>',
+    '      <alphaMap>',
+    `        <path>${alphaPath}</path>`,
+    '        <componentDepth>1</componentDepth>',
+    `        <bitDepth>${opts.alphaBitDepth}</bitDepth>`,
+    '        <gammaEmbedded>1.0</gammaEmbedded>',
+    '      </alphaMap>',
+    '    </fileset>',
+    '  </files>',
+    '</MPCDI>',
+    '',
+  ].join('\n');
+
+  const mtime = date;
+  return zipSync(
+    {
+      'mpcdi.xml': [strToU8(xml), { mtime }],
+      [warpPath]: [warpPfm, { mtime }],
+      [alphaPath]: [alphaPng, { mtime, level: 0 }],
+    },
+    { level: 6 },
+  );
+}
+
+/**
+ * The alpha map at the region's resolution: brightness·mask interpolated bilinearly from the grid at
+ * each pixel centre (x + 0.5, y + 0.5), first PNG row = top of the projector frame.
+ */
+async function encodeAlphaMap(mesh: WarpMesh, width: number, height: number, bitDepth: 8 | 16): Promise<Uint8Array> {
+  const { cols, rows } = mesh;
+  const max = bitDepth === 16 ? 65535 : 255;
+  const out = bitDepth === 16 ? new Uint16Array(width * height) : new Uint8Array(width * height);
+  const sx = (cols - 1) / width;
+  const sy = (rows - 1) / height;
+  const k = (i: number): number => mesh.brightness[i] * mesh.mask[i];
+  for (let y = 0; y < height; y++) {
+    const gy = Math.min(rows - 1, (y + 0.5) * sy);
+    const r0 = Math.min(rows - 2, Math.floor(gy));
+    const fy = gy - r0;
+    for (let x = 0; x < width; x++) {
+      const gx = Math.min(cols - 1, (x + 0.5) * sx);
+      const c0 = Math.min(cols - 2, Math.floor(gx));
+      const fx = gx - c0;
+      const i = r0 * cols + c0;
+      const top = k(i) * (1 - fx) + k(i + 1) * fx;
+      const bottom = k(i + cols) * (1 - fx) + k(i + cols + 1) * fx;
+      const a = top * (1 - fy) + bottom * fy;
+      out[y * width + x] = Math.round(Math.min(1, Math.max(0, a)) * max);
+    }
+  }
+  if (out instanceof Uint16Array) return encodePng16(out, width, height, 1);
+  const png = await sharp(out, { raw: { width, height, channels: 1 } }).toColorspace('b-w').png({ compressionLevel: 9 }).toBuffer();
+  return new Uint8Array(png.buffer, png.byteOffset, png.byteLength);
+}
+
+export interface MpcdiContents {
+  /** The warp as a mesh: u, v exact; brightness = alpha at the pixel nearest each grid point; mask = 1 where that alpha > 0. */
+  mesh: WarpMesh;
+  xml: string;
+  profile: string;
+  warpPath: string;
+  alphaPath: string;
+  /** Alpha map samples scaled to [0, 1], the top row first. */
+  alpha: { width: number; height: number; data: Float32Array };
+}
+
+/** Unzips an MPCDI package written by {@link writeMpcdi} and reads back its warp and alpha map. */
+export async function readMpcdi(bytes: Uint8Array): Promise<MpcdiContents> {
+  let entries: Record<string, Uint8Array>;
+  try {
+    entries = unzipSync(bytes);
+  } catch (err) {
+    throw new Error(`Expected an MPCDI package (a ZIP) but could not unzip it: ${(err as Error).message}`);
+  }
+  const xmlBytes = entries['mpcdi.xml'];
+  if (!xmlBytes) throw new Error('Expected mpcdi.xml in the MPCDI package but found none');
+  const xml = strFromU8(xmlBytes);
+  const profile = /<MPCDI\b[^>]*\bprofile="([^"]*)"/.exec(xml)?.[1];
+  if (profile !== '2d') throw new Error(`Expected MPCDI profile "2d" but received ${profile === undefined ? 'none' : `"${profile}"`}`);
+  const region = /<region\b([^>]*)>/.exec(xml)?.[1] ?? '';
+  const xRes = Number(/\bxResolution="([^"]*)"/.exec(region)?.[1]);
+  const yRes = Number(/\byResolution="([^"]*)"/.exec(region)?.[1]);
+  const warpPath = /<geometryWarpFile>[\s\S]*?<path>([^<]*)<\/path>/.exec(xml)?.[1]?.trim();
+  const alphaPath = /<alphaMap>[\s\S]*?<path>([^<]*)<\/path>/.exec(xml)?.[1]?.trim();
+  if (!warpPath || !entries[warpPath]) throw new Error(`Expected the geometry warp file ${warpPath ?? '(no path)'} in the MPCDI package`);
+  if (!alphaPath || !entries[alphaPath]) throw new Error(`Expected the alpha map ${alphaPath ?? '(no path)'} in the MPCDI package`);
+  if (!(xRes > 0) || !(yRes > 0)) throw new Error('Expected region xResolution and yResolution in mpcdi.xml');
+
+  const pfm = decodePfm(entries[warpPath], { rowOrder: 'top-down' });
+  if (pfm.channels !== 3) throw new Error('Expected a 3-channel geometry warp PFM');
+  const wide = (await sharp(entries[alphaPath]).metadata()).depth === 'ushort';
+  // 16-bit needs an explicit 16-bit colourspace, or sharp returns 8-bit sRGB values widened to ushort.
+  const alphaImage = wide ? sharp(entries[alphaPath]).toColorspace('grey16').raw({ depth: 'ushort' }) : sharp(entries[alphaPath]).toColorspace('b-w').raw();
+  const { data: raw, info } = await alphaImage.toBuffer({ resolveWithObject: true });
+  if (info.channels !== 1) throw new Error(`Expected a 1-channel alpha map but received ${info.channels} channels`);
+  const copy = raw.buffer.slice(raw.byteOffset, raw.byteOffset + raw.byteLength);
+  const samples = wide ? new Uint16Array(copy) : new Uint8Array(copy);
+  const scale = wide ? 65535 : 255;
+  const alpha = { width: info.width, height: info.height, data: Float32Array.from(samples, (s) => s / scale) };
+
+  const cols = pfm.width;
+  const rows = pfm.height;
+  const n = cols * rows;
+  const mesh: WarpMesh = { cols, rows, width: xRes, height: yRes, u: new Float32Array(n), v: new Float32Array(n), brightness: new Float32Array(n), mask: new Float32Array(n), meta: {} };
+  for (let r = 0; r < rows; r++) {
+    for (let c = 0; c < cols; c++) {
+      const i = r * cols + c;
+      mesh.u[i] = pfm.data[i * 3];
+      mesh.v[i] = pfm.data[i * 3 + 1];
+      const px = Math.min(alpha.width - 1, Math.floor((c / (cols - 1)) * alpha.width));
+      const py = Math.min(alpha.height - 1, Math.floor((r / (rows - 1)) * alpha.height));
+      const a = alpha.data[py * alpha.width + px];
+      mesh.brightness[i] = a;
+      mesh.mask[i] = a > 0 ? 1 : 0;
+    }
+  }
+  return { mesh, xml, profile, warpPath, alphaPath, alpha };
+}
+
+function xmlEscape(s: string): string {
+  return s.replace(/&/g, '&amp;').replace(/</g, '&lt;').replace(/>/g, '&gt;').replace(/"/g, '&quot;');
+}
+
+function safeName(s: string): string {
+  return s.replace(/[^A-Za-z0-9._-]/g, '_');
+}
