@@ -4,6 +4,7 @@ import { registerBake } from './commands/bake.js';
 import { registerInit } from './commands/init.js';
 import { registerLocate } from './commands/locate.js';
 import { registerProbe } from './commands/probe.js';
+import { registerWarp } from './commands/warp.js';
 import { UserError } from './errors.js';
 import { VERSION } from './version.js';
 
@@ -18,6 +19,7 @@ export function buildProgram(): Command {
   registerProbe(program);
   registerLocate(program);
   registerBake(program);
+  registerWarp(program);
   for (const c of program.commands) c.exitOverride();
   return program;
 }

@@ -11,3 +11,5 @@ export * from './locate.js';
 export * from './mesh/index.js';
 export * from './remap/index.js';
 export * from './rig-check.js';
+export * from './calibrate/index.js';
+export * from './testcard/testcard.js';

@@ -1,0 +1,47 @@
+/** One frame's work, shared by the worker threads and the in-process path. */
+import { renameSync, rmSync, writeFileSync } from 'node:fs';
+import { createImageLike, remap, type ImageBuffer, type RemapFilter, type RemapMap } from '@skyfold/warp-core';
+import { decodeFrame, encodeFrame, FrameError, type EncodeOptions } from './image-io.js';
+
+export interface WarpSettings {
+  filter: RemapFilter;
+  maxPixels: number;
+  /** Expected source size; a frame of another size is refused. */
+  sourceSize: [number, number];
+  /** Per-frame output format, or undefined to keep each input's own. */
+  encode: Omit<EncodeOptions, 'format'> & { format?: EncodeOptions['format'] };
+}
+
+export interface FrameJob {
+  id: number;
+  input: string;
+  output: string;
+  temp: string;
+  format: EncodeOptions['format'];
+}
+
+export type FrameOutcome = { id: number; ok: true; ms: number } | { id: number; ok: false; reason: string };
+
+/** Decodes, checks, warps, encodes and writes one frame (temporary file, then rename). */
+export async function runFrameJob(job: FrameJob, map: RemapMap, s: WarpSettings, scratch: { out?: ImageBuffer }): Promise<FrameOutcome> {
+  const t0 = performance.now();
+  try {
+    const src = await decodeFrame(job.input, s.maxPixels);
+    if (src.width !== s.sourceSize[0] || src.height !== s.sourceSize[1]) {
+      throw new FrameError(`wrong size: ${src.width}x${src.height}, expected ${s.sourceSize[0]}x${s.sourceSize[1]} like the first frame`);
+    }
+    let out = scratch.out;
+    if (!out || out.channels !== src.channels || out.data.BYTES_PER_ELEMENT !== src.data.BYTES_PER_ELEMENT) {
+      out = scratch.out = createImageLike(src, map.width, map.height);
+    }
+    remap(src, map, { filter: s.filter, out });
+    const bytes = await encodeFrame(out, { ...s.encode, format: job.format });
+    writeFileSync(job.temp, bytes);
+    renameSync(job.temp, job.output);
+    return { id: job.id, ok: true, ms: performance.now() - t0 };
+  } catch (e) {
+    rmSync(job.temp, { force: true });
+    const reason = e instanceof FrameError ? e.message : `failed: ${(e as Error)?.message?.split('\n')[0] ?? String(e)}`;
+    return { id: job.id, ok: false, reason };
+  }
+}

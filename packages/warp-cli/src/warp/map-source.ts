@@ -1,0 +1,78 @@
+/** Where a warp's map comes from: an exact per-pixel trace of a rig, or a baked mesh (.glb). */
+import { createHash } from 'node:crypto';
+import { readFileSync } from 'node:fs';
+import { BAKE_DEFAULTS, pixelMapFromMesh, pixelMapFromRig, rigToDocument, type RemapMap, type SourceOrientation, type WarpMesh, type Rig } from '@skyfold/warp-core';
+import { loadRig } from '../document-file.js';
+import { UserError } from '../errors.js';
+import { readGlb } from '../export/glb.js';
+import { warn } from '../messages.js';
+
+export interface MapSettings extends SourceOrientation {
+  brightness?: number;
+  brightnessFloor?: number;
+  feather?: number;
+}
+
+export interface MapSource {
+  kind: 'rig' | 'mesh';
+  /** Projector resolution. */
+  width: number;
+  height: number;
+  /** Stable text naming the geometry, for the run log. */
+  key: string;
+  rig?: Rig;
+  mesh?: WarpMesh;
+  build(size: [number, number], s: MapSettings): RemapMap;
+}
+
+export async function loadMapSource(path: string): Promise<MapSource> {
+  if (path.toLowerCase().endsWith('.glb')) {
+    let bytes: Buffer;
+    try {
+      bytes = readFileSync(path);
+    } catch (e) {
+      throw new UserError(`${path}: cannot read the mesh: ${(e as NodeJS.ErrnoException).code === 'ENOENT' ? 'no such file' : (e as Error).message}`);
+    }
+    let mesh: WarpMesh;
+    try {
+      mesh = await readGlb(new Uint8Array(bytes.buffer, bytes.byteOffset, bytes.byteLength));
+    } catch (e) {
+      throw new UserError(`${path}: not a skyfold warp mesh: ${(e as Error).message.split('\n')[0]}`);
+    }
+    const key = 'mesh:' + createHash('sha256').update(bytes).digest('hex');
+    return {
+      kind: 'mesh',
+      width: mesh.width,
+      height: mesh.height,
+      key,
+      mesh,
+      build(size, s) {
+        const map = pixelMapFromMesh(mesh, size, s);
+        if (s.brightness === 0) {
+          // compensation off: keep only the mask, which the mesh carries separately
+          const m = pixelMapFromMesh({ ...mesh, brightness: new Float32Array(mesh.brightness.length).fill(1) }, size, s);
+          return m;
+        }
+        return map;
+      },
+    };
+  }
+  const { rig, warnings } = loadRig(path);
+  warnings.forEach(warn);
+  return {
+    kind: 'rig',
+    width: rig.projector.resolution[0],
+    height: rig.projector.resolution[1],
+    key: 'rig:' + JSON.stringify(rigToDocument(rig, 'm', 9)),
+    rig,
+    build(size, s) {
+      return pixelMapFromRig(rig, size, {
+        brightness: s.brightness ?? BAKE_DEFAULTS.brightness,
+        brightnessFloor: s.brightnessFloor ?? BAKE_DEFAULTS.brightnessFloor,
+        feather: s.feather ?? BAKE_DEFAULTS.feather,
+        flip: s.flip,
+        rotate: s.rotate,
+      });
+    },
+  };
+}
