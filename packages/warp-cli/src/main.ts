@@ -5,6 +5,7 @@ import { registerInit } from './commands/init.js';
 import { registerLocate } from './commands/locate.js';
 import { registerProbe } from './commands/probe.js';
 import { registerWarp } from './commands/warp.js';
+import { registerSimulate } from './commands/simulate.js';
 import { UserError } from './errors.js';
 import { VERSION } from './version.js';
 
@@ -20,6 +21,7 @@ export function buildProgram(): Command {
   registerLocate(program);
   registerBake(program);
   registerWarp(program);
+  registerSimulate(program);
   for (const c of program.commands) c.exitOverride();
   return program;
 }
