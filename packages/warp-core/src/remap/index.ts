@@ -1,0 +1,3 @@
+export * from './types.js';
+export * from './remap.js';
+export * from '../srgb.js';
