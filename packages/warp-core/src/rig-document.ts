@@ -10,7 +10,7 @@ type Doc = Record<string, unknown>;
 
 /** The fields a rig document may hold, by section; used for unknown-field checks with a did-you-mean. */
 export const RIG_FIELDS: Readonly<Record<string, readonly string[]>> = {
-  '': ['units', 'name', 'notes', 'dome', 'mirror', 'projector', 'content'],
+  '': ['units', 'name', 'notes', 'dome', 'projector', 'mirror', 'content'],
   dome: ['radius', 'diameter', 'floor'],
   mirror: ['radius', 'cap', 'center', 'axis', 'capAngle'],
   'mirror.cap': ['width', 'depth'],
@@ -165,7 +165,7 @@ export function documentUnits(doc: Doc, field = 'units'): LengthUnit {
  * work but are probably not what was meant (see `rigWarnings`).
  */
 export function rigFromDocument(input: unknown): Rig {
-  if (typeof input !== 'object' || input === null || Array.isArray(input)) throw new RigError('', `expected a rig document (a mapping of dome, mirror, projector, content), got ${showValue(input)}`);
+  if (typeof input !== 'object' || input === null || Array.isArray(input)) throw new RigError('', `expected a rig document (a mapping of dome, projector, mirror and content), got ${showValue(input)}`);
   const doc = input as Doc;
   checkKnownFields(doc, '', RIG_FIELDS['']);
   const units = documentUnits(doc);

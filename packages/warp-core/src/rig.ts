@@ -1,5 +1,5 @@
 /**
- * The rig: dome, mirror, projector and content, in metres and radians (DESIGN.md "Frames and units").
+ * The rig: dome, projector, mirror and content, in metres and radians (DESIGN.md "Frames and units").
  * Rig files speak degrees and the file's units; `rig-document.ts` converts at that boundary.
  */
 import { cross, DEG, dot, length, normalize, safeAcos, scale, sub, type ReadonlyVec3, type Vec3 } from './math.js';

@@ -45,7 +45,8 @@ export class Tracer {
 
   /** Traces one continuous pixel coordinate, with every intermediate quantity. */
   pixel(x: number, y: number): TraceResult {
-    const { mirror, dome, content } = this.rig;
+    const { mirror, content } = this.rig;
+    const dome = this.rig.dome;
     const ray = pixelToRay([0, 0, 0], this.frame, x, y);
     const P = this.frame.origin;
     const t = raySphereFirstHit(P, ray, mirror.center, mirror.radius);
@@ -86,7 +87,8 @@ export class Tracer {
     const nx = xs.length;
     const ny = ys.length;
     const f = this.frame;
-    const { mirror, dome, content } = this.rig;
+    const { mirror, content } = this.rig;
+    const dome = this.rig.dome;
     const W = f.width;
     const H = f.height;
     const T = f.throwRatio;
