@@ -45,15 +45,35 @@ export function simulationMap(rig: Rig, size: number, options: SimulateOptions =
   }
   if (options.brightness === 'physical') {
     const areaMax = referenceArea(tracer);
-    // area at each located pixel: evaluated in rows of points to use the grid tracer
-    const xs = new Float64Array(1);
-    const ys = new Float64Array(1);
+    // the dome area per projector pixel on a grid every `step` pixels, interpolated at each located pixel
+    const step = 2;
+    const { width: W, height: H } = tracer.frame;
+    const nx = Math.ceil(W / step) + 1;
+    const ny = Math.ceil(H / step) + 1;
+    const xs = Float64Array.from({ length: nx }, (_, i) => Math.min(W, i * step));
+    const ys = Float64Array.from({ length: ny }, (_, j) => Math.min(H, j * step));
+    const area = domeAreaOnGrid(tracer, xs, ys);
     for (let k = 0; k < n; k++) {
       if (!(gain[k] > 0)) continue;
-      xs[0] = x[k];
-      ys[0] = y[k];
-      const a = domeAreaOnGrid(tracer, xs, ys)[0];
-      gain[k] = Number.isFinite(a) && a > 0 ? areaMax / a : 1;
+      const gx = Math.min(nx - 1.000001, x[k] / step);
+      const gy = Math.min(ny - 1.000001, y[k] / step);
+      const i0 = Math.floor(gx);
+      const j0 = Math.floor(gy);
+      const fx = gx - i0;
+      const fy = gy - j0;
+      // weighted over the finite corners (the lit edge has unlit neighbours)
+      let sum = 0;
+      let wsum = 0;
+      const corners: [number, number][] = [[0, 0], [1, 0], [0, 1], [1, 1]];
+      for (const [di, dj] of corners) {
+        const a = area[(j0 + dj) * nx + i0 + di];
+        const w = (di ? fx : 1 - fx) * (dj ? fy : 1 - fy);
+        if (Number.isFinite(a) && a > 0 && w > 0) {
+          sum += w * a;
+          wsum += w;
+        }
+      }
+      gain[k] = wsum > 0 ? areaMax / (sum / wsum) : 1;
     }
   }
   return { width: size, height: size, x, y, gain };
