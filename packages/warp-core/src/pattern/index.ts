@@ -1,0 +1,4 @@
+export * from './raster.js';
+export * from './digit-font.js';
+export * from './dome-master.js';
+export * from './markers.js';
