@@ -6,6 +6,10 @@ import { registerLocate } from './commands/locate.js';
 import { registerProbe } from './commands/probe.js';
 import { registerWarp } from './commands/warp.js';
 import { registerSimulate } from './commands/simulate.js';
+import { registerFit } from './commands/fit.js';
+import { registerPattern } from './commands/pattern.js';
+import { registerReport } from './commands/report.js';
+import { registerPlan } from './commands/plan.js';
 import { UserError } from './errors.js';
 import { VERSION } from './version.js';
 
@@ -22,6 +26,10 @@ export function buildProgram(): Command {
   registerBake(program);
   registerWarp(program);
   registerSimulate(program);
+  registerPattern(program);
+  registerFit(program);
+  registerReport(program);
+  registerPlan(program);
   for (const c of program.commands) c.exitOverride();
   return program;
 }

@@ -13,3 +13,7 @@ export * from './remap/index.js';
 export * from './rig-check.js';
 export * from './calibrate/index.js';
 export * from './testcard/testcard.js';
+export * from './simulate.js';
+export * from './pattern/index.js';
+export * from './report/index.js';
+export * from './raster/index.js';

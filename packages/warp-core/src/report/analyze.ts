@@ -1,0 +1,114 @@
+/**
+ * `analyzeRig`: every figure of the report from one coarse trace of the frame (a few hundred thousand
+ * rays at most) and one pass of dome directions through the inverse.
+ */
+import type { Rig } from '../rig.js';
+import { Tracer } from '../trace.js';
+import { brightnessFigures, type BrightnessFigures } from './brightness.js';
+import { contentSolidAngle, coverageFromDirections, type AzimuthCoverage, type DirectionCoverageOptions } from './coverage.js';
+import { focusFigures, type FocusFigures } from './focus.js';
+import { cellArcmin, resolutionFigures, type ResolutionFigures } from './resolution.js';
+import { safetyFigures, type SafetyFigures, type SafetyZones } from './safety.js';
+import { cellFields, Fate, sampleFrame, type CellFields, type FrameSample } from './sample.js';
+import { pixelFigures, spillFigures, type PixelFigures, type SpillFigures } from './spill.js';
+import { roundFigure as r } from './stats.js';
+
+export interface ReportOptions {
+  /** About how many frame vertices to trace. */
+  vertices: number;
+  /** Times a cell on the lit region's edge is split. */
+  depth: number;
+  /** The dome-direction pass (coverage the inverse way, per-azimuth altitudes). */
+  directions: Partial<DirectionCoverageOptions>;
+}
+
+export const REPORT_DEFAULTS: Readonly<ReportOptions> = { vertices: 120_000, depth: 3, directions: {} };
+
+export interface CoverageFigures {
+  /** Share of the content's dome solid angle that is lit, from the projector grid. */
+  fraction: number | null;
+  /** The same by sampling dome directions through the inverse (an independent check). */
+  fractionByInverse: number | null;
+  /** Lit and content solid angles, steradians. */
+  litSolidAngle: number | null;
+  contentSolidAngle: number | null;
+  /** Share of the content's dome the projector's body hides from the light; null without a body. */
+  bodyShadow: number | null;
+  /** Per azimuth (every 5°): lowest and highest lit altitude and the unlit gaps, degrees. */
+  byAzimuth: AzimuthCoverage[];
+}
+
+export interface ReportFigures {
+  rig: { name: string | null; units: string };
+  coverage: CoverageFigures;
+  pixels: PixelFigures;
+  resolution: ResolutionFigures;
+  brightness: BrightnessFigures;
+  spill: SpillFigures;
+  focus: FocusFigures;
+  safety: SafetyFigures;
+}
+
+export interface RigAnalysis {
+  figures: ReportFigures;
+  sample: FrameSample;
+  cells: CellFields;
+  /** Arcminutes per pixel per full lit cell (NaN elsewhere). */
+  arcmin: Float64Array;
+  safetyZones: SafetyZones | null;
+}
+
+/** Arcminutes per pixel near each vertex: the mean over its finite neighbouring cells. */
+export function vertexFromCells(s: FrameSample, cellValues: Float64Array): Float64Array {
+  const out = new Float64Array(s.cols * s.rows).fill(Number.NaN);
+  const nc = s.cols - 1;
+  for (let j = 0; j < s.rows; j++)
+    for (let i = 0; i < s.cols; i++) {
+      let sum = 0;
+      let cnt = 0;
+      for (const [ci, cj] of [[i - 1, j - 1], [i, j - 1], [i - 1, j], [i, j]]) {
+        if (ci < 0 || cj < 0 || ci >= nc || cj >= s.rows - 1) continue;
+        const v = cellValues[cj * nc + ci];
+        if (Number.isFinite(v)) {
+          sum += v;
+          cnt++;
+        }
+      }
+      if (cnt) out[j * s.cols + i] = sum / cnt;
+    }
+  return out;
+}
+
+export function analyzeRig(rig: Rig, options: Partial<ReportOptions> = {}): RigAnalysis {
+  const o = { ...REPORT_DEFAULTS, ...options };
+  const tracer = new Tracer(rig);
+  const sample = sampleFrame(tracer, { vertices: o.vertices });
+  const cells = cellFields(sample, o.depth);
+  const omegaC = contentSolidAngle(tracer);
+  let bodyShadow: number | null = null;
+  if (rig.projector.body) {
+    const withShadow = cellFields(sample, o.depth, (f) => f === Fate.Lit || f === Fate.Shadow);
+    bodyShadow = r((withShadow.total - cells.total) / omegaC);
+  }
+  const dirs = coverageFromDirections(tracer, o.directions);
+  const arcmin = cellArcmin(cells);
+  const safety = safetyFigures(sample);
+  const figures: ReportFigures = {
+    rig: { name: rig.name ?? null, units: rig.units },
+    coverage: {
+      fraction: r(cells.total / omegaC),
+      fractionByInverse: r(dirs.fraction),
+      litSolidAngle: r(cells.total),
+      contentSolidAngle: r(omegaC),
+      bodyShadow,
+      byAzimuth: dirs.byAzimuth,
+    },
+    pixels: pixelFigures(sample),
+    resolution: resolutionFigures(sample, cells, arcmin, omegaC),
+    brightness: brightnessFigures(cells),
+    spill: spillFigures(sample),
+    focus: focusFigures(sample, vertexFromCells(sample, arcmin)),
+    safety: safety.figures,
+  };
+  return { figures, sample, cells, arcmin, safetyZones: safety.zones };
+}

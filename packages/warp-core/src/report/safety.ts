@@ -1,0 +1,305 @@
+/**
+ * Safety of the beam: where the projector's light passes through the heights at which people's eyes
+ * are, and the standing cautions. The concentrated beam between the lens and the mirror is the danger;
+ * reflected light is spread thinner, but anyone whose eyes are in it and who looks toward the mirror
+ * sees the lens's reflection.
+ */
+import { azAltFromDirection, RAD, type ReadonlyVec3, type Vec3 } from '../math.js';
+import { reflectionPoint } from '../locate.js';
+import { onCap } from '../mirror.js';
+import { insideFrame, rayToPixel } from '../projector.js';
+import { segmentHitsBody } from './body.js';
+import { landing } from './light.js';
+import { formatLength } from '../units.js';
+import { Fate, type FrameSample } from './sample.js';
+import { strayLandings } from './spill.js';
+import { azimuthArc, roundFigure as r } from './stats.js';
+
+export interface EyeBand {
+  name: 'floor-seated' | 'seated' | 'standing';
+  label: string;
+  /** Metres above the floor. */
+  from: number;
+  to: number;
+}
+
+/**
+ * Eye heights above the floor. Common practice (no standard behind these numbers): seated adults'
+ * eyes ≈ 1.2 m, standing adults' 1.5–1.8 m; audiences of portable domes often sit on the floor or on
+ * cushions, eyes ≈ 0.6–0.9 m.
+ */
+export const EYE_BANDS: readonly EyeBand[] = [
+  { name: 'floor-seated', label: 'sitting on the floor', from: 0.6, to: 0.9 },
+  { name: 'seated', label: 'seated on chairs', from: 1.1, to: 1.3 },
+  { name: 'standing', label: 'standing', from: 1.5, to: 1.8 },
+];
+
+/** The cautions every report carries, whatever the rig. */
+export const STANDING_CAUTIONS: readonly string[] = [
+  'Never look into the beam, and never let anyone else: the light between projector and mirror can cross the dome at eye height.',
+  'Secure the mirror and its stand, and the projector, so that neither can tip, slide or be knocked over in the dark.',
+  'Keep aisles and exits clear and lit to the level local rules require; people move in the dark here.',
+  'Projectors run hot: keep vents clear, keep hands and fabric away, and route and tape down cables so nobody trips.',
+  "Local fire and building codes, licensed practice and the projector maker's instructions come first; this report does not replace them (for the photobiological safety of image projectors, see IEC 62471-5 and the maker's hazard distance).",
+];
+
+export type FindingLevel = 'danger' | 'caution' | 'note';
+export interface Finding {
+  level: FindingLevel;
+  text: string;
+}
+
+export interface BandZone {
+  name: EyeBand['name'];
+  label: string;
+  /** Metres above the floor; source: common practice. */
+  from: number;
+  to: number;
+  directBeam: {
+    crosses: boolean;
+    /** Horizontal distance from the lens where the beam is in the band. */
+    distanceFromLens: [number, number] | null;
+    /** Plan-view extent of that zone (world x and y). */
+    x: [number, number] | null;
+    y: [number, number] | null;
+  };
+  /** The part of the beam that misses the mirror and goes on to the back of the room (blacked out by the mesh). */
+  pastMirror: {
+    crosses: boolean;
+    distanceFromLens: [number, number] | null;
+  };
+  reflected: {
+    crosses: boolean;
+    /** Share of the room's floor area above which the reflected light passes through the band. */
+    floorShare: number | null;
+    /** Farthest horizontal distance from the mirror at which it does. */
+    reachFromMirror: number | null;
+    /** Azimuth arc where the picture meets the dome or wall at this eye height (light returning to eye level near the walls). */
+    wallAzimuths: [number, number] | null;
+  };
+}
+
+export interface SafetyFigures {
+  floorKnown: boolean;
+  /** Height of the lens and of the mirror's centre above the floor. */
+  lensHeight: number | null;
+  mirrorHeight: number | null;
+  bands: BandZone[];
+  findings: Finding[];
+  cautions: readonly string[];
+  source: string;
+}
+
+/** Plan-view rasters (n × n over [−R, R]², row 0 at +y) marking where light crosses each band. */
+export interface SafetyZones {
+  n: number;
+  extent: number;
+  direct: Uint8Array[];
+  reflected: Uint8Array[];
+}
+
+/** "all around the dome", "between azimuths 120° and 240°", or "all around except azimuths 171°–189°". */
+export function describeArc(arc: readonly [number, number]): string {
+  const [a, b] = arc;
+  if ((b - a >= 359.5 && a <= 0.5) || (b - a + 360) % 360 >= 350) return 'all around the dome';
+  const span = (b - a + 360) % 360;
+  if (span > 300) return `all around the dome except between azimuths ${b.toFixed(0)}° and ${a.toFixed(0)}°`;
+  return `between azimuths ${a.toFixed(0)}° and ${b.toFixed(0)}°`;
+}
+
+/**
+ * True when picture light (lit content, not blocked by the body) reflected by the mirror passes through
+ * the point Q: the reflection point from the lens to Q (`reflectionPoint`) must be on the cap, be the
+ * ray's first hit and lie inside the frame, and the light must go on to the content on the dome.
+ */
+export function reflectedThrough(s: FrameSample, Q: Vec3): boolean {
+  const tracer = s.tracer;
+  const { dome, content, projector } = tracer.rig;
+  const mirror = tracer.rig.mirror;
+  const f = tracer.frame;
+  const P = f.origin;
+  if (Math.hypot(Q[0] - mirror.center[0], Q[1] - mirror.center[1], Q[2] - mirror.center[2]) <= mirror.radius) return false;
+  const X = reflectionPoint(P, mirror.center, mirror.radius, Q);
+  if (X === null || !onCap(mirror, X)) return false;
+  const px = rayToPixel(f, [X[0] - P[0], X[1] - P[1], X[2] - P[2]]);
+  if (px === null || !insideFrame(f, px[0], px[1])) return false;
+  const ql = Math.hypot(Q[0] - X[0], Q[1] - X[1], Q[2] - X[2]);
+  const d: Vec3 = [(Q[0] - X[0]) / ql, (Q[1] - X[1]) / ql, (Q[2] - X[2]) / ql];
+  const D = landing(X, d, dome.radius, dome.floor).point;
+  if (D[2] < 0) return false;
+  const w: Vec3 = [D[0] - content.eye[0], D[1] - content.eye[1], D[2] - content.eye[2]];
+  const wl = Math.hypot(w[0], w[1], w[2]);
+  if (Math.acos(Math.max(-1, Math.min(1, w[2] / wl))) > content.fov / 2) return false;
+  return !(projector.body && segmentHitsBody(projector.body, f, X, D));
+}
+
+/** The part [ta, tb] of the segment a → b with z in [lo, hi], or null. */
+function clipZ(a: ReadonlyVec3, b: ReadonlyVec3, lo: number, hi: number): [number, number] | null {
+  const dz = b[2] - a[2];
+  if (Math.abs(dz) < 1e-12) return a[2] >= lo && a[2] <= hi ? [0, 1] : null;
+  let t0 = (lo - a[2]) / dz;
+  let t1 = (hi - a[2]) / dz;
+  if (t0 > t1) [t0, t1] = [t1, t0];
+  t0 = Math.max(0, t0);
+  t1 = Math.min(1, t1);
+  return t0 <= t1 ? [t0, t1] : null;
+}
+
+export function safetyFigures(s: FrameSample): { figures: SafetyFigures; zones: SafetyZones | null } {
+  const rig = s.tracer.rig;
+  const floor = rig.dome.floor;
+  const L = (m: number) => formatLength(m, rig.units, 2);
+  const P = s.tracer.frame.origin;
+  const C = rig.mirror.center;
+  const findings: Finding[] = [];
+  if (floor === undefined) {
+    findings.push({ level: 'note', text: 'dome.floor is not given, so eye heights cannot be placed: add how far the floor lies below the springline for the eye-height findings.' });
+    return { figures: { floorKnown: false, lensHeight: null, mirrorHeight: null, bands: [], findings, cautions: STANDING_CAUTIONS, source: 'common practice' }, zones: null };
+  }
+  const R = rig.dome.radius;
+  const n = 120;
+  const cell = (2 * R) / n;
+  const landings = strayLandings(s);
+  const bands: BandZone[] = [];
+  const zones: SafetyZones = { n, extent: R, direct: [], reflected: [] };
+  const mark = (grid: Uint8Array, a: ReadonlyVec3, b: ReadonlyVec3, t0: number, t1: number, visit?: (x: number, y: number) => void) => {
+    const ax = a[0] + t0 * (b[0] - a[0]);
+    const ay = a[1] + t0 * (b[1] - a[1]);
+    const bx = a[0] + t1 * (b[0] - a[0]);
+    const by = a[1] + t1 * (b[1] - a[1]);
+    const steps = Math.ceil(Math.hypot(bx - ax, by - ay) / cell) + 1;
+    for (let q = 0; q <= steps; q++) {
+      const x = ax + ((bx - ax) * q) / steps;
+      const y = ay + ((by - ay) * q) / steps;
+      visit?.(x, y);
+      const i = Math.floor((x + R) / cell);
+      const j = Math.floor((R - y) / cell);
+      if (i >= 0 && j >= 0 && i < n && j < n) grid[j * n + i] = 1;
+    }
+  };
+  for (const band of EYE_BANDS) {
+    const lo = band.from - floor;
+    const hi = band.to - floor;
+    const direct = new Uint8Array(n * n);
+    const reflected = new Uint8Array(n * n);
+    let dMin = Infinity, dMax = -Infinity, xMin = Infinity, xMax = -Infinity, yMin = Infinity, yMax = -Infinity;
+    let pMin = Infinity, pMax = -Infinity;
+    const visitPast = (x: number, y: number) => {
+      const d = Math.hypot(x - P[0], y - P[1]);
+      pMin = Math.min(pMin, d);
+      pMax = Math.max(pMax, d);
+    };
+    let reach = 0;
+    let any = false;
+    const wallAz: number[] = [];
+    const visitDirect = (x: number, y: number) => {
+      const d = Math.hypot(x - P[0], y - P[1]);
+      dMin = Math.min(dMin, d);
+      dMax = Math.max(dMax, d);
+      xMin = Math.min(xMin, x);
+      xMax = Math.max(xMax, x);
+      yMin = Math.min(yMin, y);
+      yMax = Math.max(yMax, y);
+    };
+    // every other vertex each way is plenty for a plan-view raster of 4 cm cells
+    const stride = s.cols * s.rows > 40_000 ? 2 : 1;
+    for (let k = 0; k < s.fate.length; k++) {
+      if (stride > 1 && ((k % s.cols) % stride !== 0 || Math.floor(k / s.cols) % stride !== 0)) continue;
+      const fate = s.fate[k];
+      const l = landings[k];
+      if (fate === Fate.MirrorMiss) {
+        if (!l) continue;
+        const c = clipZ(P, l.point, lo, hi);
+        if (c) mark(direct, P, l.point, c[0], c[1], visitPast);
+        continue;
+      }
+      const X: [number, number, number] = [s.mirrorPoint[3 * k], s.mirrorPoint[3 * k + 1], s.mirrorPoint[3 * k + 2]];
+      const ci = clipZ(P, X, lo, hi);
+      if (ci) mark(direct, P, X, ci[0], ci[1], visitDirect);
+      if (fate === Fate.OutsideContent) continue; // blacked out by the mesh, and its black level is the spill figures' business
+      const end: ReadonlyVec3 = l ? l.point : [s.point[3 * k], s.point[3 * k + 1], s.point[3 * k + 2]];
+      if (fate === Fate.Shadow) continue;
+      if (end[2] >= lo && end[2] <= hi && fate === Fate.Lit) wallAz.push(azAltFromDirection([end[0], end[1], 0])[0] * RAD);
+    }
+    // share of the floor area inside the wall at the band's height
+    const zMid = (lo + hi) / 2;
+    const wallR = Math.sqrt(Math.max(0, R * R - zMid * zMid));
+    let inside = 0;
+    let hit = 0;
+    for (let j = 0; j < n; j++)
+      for (let i = 0; i < n; i++) {
+        const x = -R + (i + 0.5) * cell;
+        const y = R - (j + 0.5) * cell;
+        if (Math.hypot(x, y) > wallR) continue;
+        inside++;
+        // exact: does lit, reflected light pass through this point at any of three heights in the band?
+        if ([lo, (lo + hi) / 2, hi].some((z) => reflectedThrough(s, [x, y, z]))) {
+          reflected[j * n + i] = 1;
+          hit++;
+          any = true;
+          reach = Math.max(reach, Math.hypot(x - C[0], y - C[1]));
+        }
+      }
+    const crosses = Number.isFinite(dMin);
+    bands.push({
+      name: band.name,
+      label: band.label,
+      from: band.from,
+      to: band.to,
+      directBeam: {
+        crosses,
+        distanceFromLens: crosses ? [r(dMin, 3)!, r(dMax, 3)!] : null,
+        x: crosses ? [r(xMin, 3)!, r(xMax, 3)!] : null,
+        y: crosses ? [r(yMin, 3)!, r(yMax, 3)!] : null,
+      },
+      pastMirror: { crosses: Number.isFinite(pMin), distanceFromLens: Number.isFinite(pMin) ? [r(pMin, 3)!, r(pMax, 3)!] : null },
+      reflected: {
+        crosses: any,
+        floorShare: inside ? r(hit / inside, 3) : null,
+        reachFromMirror: any ? r(reach, 3) : null,
+        wallAzimuths: wallAz.length ? (azimuthArc(wallAz)!.map((a) => r(a, 1)) as [number, number]) : null,
+      },
+    });
+    zones.direct.push(direct);
+    zones.reflected.push(reflected);
+  }
+  const h = (z: number) => z + floor;
+  const range = (b: EyeBand) => `${L(b.from)} to ${L(b.to)} above the floor`;
+  for (const z of bands) {
+    const band = EYE_BANDS.find((b) => b.name === z.name)!;
+    if (z.directBeam.crosses) {
+      const [d0, d1] = z.directBeam.distanceFromLens!;
+      findings.push({
+        level: 'danger',
+        text: `The beam from the projector runs at the eye height of people ${band.label} (${range(band)}) from ${L(d0)} to ${L(d1)} from the lens, over x ${L(z.directBeam.x![0])} to ${L(z.directBeam.x![1])}, y ${L(z.directBeam.y![0])} to ${L(z.directBeam.y![1])}. Nobody may sit, stand or walk there: rope the zone off or raise the beam.`,
+      });
+    }
+    if (z.pastMirror.crosses) {
+      const [d0, d1] = z.pastMirror.distanceFromLens!;
+      findings.push({
+        level: 'caution',
+        text: `Part of the frame misses the mirror and goes on at the eye height of people ${band.label} (${range(band)}), ${L(d0)} to ${L(d1)} from the lens. The warp mesh blacks it out, but the projector's start-up screen and menus are not warped: never stand behind the mirror, and keep the menus off during shows.`,
+      });
+    }
+    if (z.reflected.wallAzimuths) {
+      findings.push({
+        level: 'caution',
+        text: `The picture itself meets the dome at the eye height of people ${band.label} (${range(band)}) ${describeArc(z.reflected.wallAzimuths)}: people there have the light in their eyes, and anyone who looks toward the mirror sees the lens's reflection. Seat people so that they face away from the mirror, or keep the lowest part of the picture dark.`,
+      });
+    } else if (z.reflected.crosses && (z.reflected.floorShare ?? 0) > 0) {
+      findings.push({
+        level: 'caution',
+        text: `Reflected light passes through the eye height of people ${band.label} (${range(band)}) over ${((z.reflected.floorShare ?? 0) * 100).toFixed(0)}% of the floor, up to ${L(z.reflected.reachFromMirror ?? 0)} from the mirror: nobody should look toward the mirror from there.`,
+      });
+    }
+  }
+  const lensH = h(P[2]);
+  const mirrorH = h(C[2]);
+  if (!findings.some((f) => f.level === 'danger')) {
+    findings.unshift({ level: 'note', text: `The beam between projector and mirror stays clear of the eye-height bands (the lens is ${L(lensH)} above the floor, the mirror's centre ${L(mirrorH)}); a child or someone bending down can still meet it, so keep its path clear.` });
+  }
+  return {
+    figures: { floorKnown: true, lensHeight: r(lensH, 3), mirrorHeight: r(mirrorH, 3), bands, findings, cautions: STANDING_CAUTIONS, source: 'common practice (seated ≈ 1.2 m, standing ≈ 1.5–1.8 m, sitting on the floor ≈ 0.6–0.9 m)' },
+    zones,
+  };
+}

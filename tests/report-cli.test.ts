@@ -1,0 +1,123 @@
+/**
+ * `skyfold report` and `skyfold plan` end to end, the real binary run as a user runs it: the files, the
+ * --json keys, the HTML page opened in headless Chromium (no console errors, every picture loaded),
+ * and bad input refused with exit 2.
+ */
+import { execFile } from 'node:child_process';
+import { existsSync, mkdtempSync, readFileSync, rmSync } from 'node:fs';
+import { tmpdir } from 'node:os';
+import { join } from 'node:path';
+import { fileURLToPath, pathToFileURL } from 'node:url';
+import { promisify } from 'node:util';
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { chromium } from 'playwright-core';
+import { parse } from 'yaml';
+
+const ROOT = fileURLToPath(new URL('..', import.meta.url));
+const BIN = join(ROOT, 'node_modules/.bin/skyfold');
+const POOR = join(ROOT, 'fixtures/poor-placement.yaml');
+const CHROMIUM = '/usr/bin/chromium';
+const HAVE_CHROMIUM = existsSync(CHROMIUM);
+if (!HAVE_CHROMIUM) console.warn(`report page test skipped: no browser at ${CHROMIUM} (Debian's "chromium" package provides it)`);
+const run = promisify(execFile);
+
+async function skyfold(cwd: string, ...args: string[]): Promise<{ code: number; stdout: string; stderr: string }> {
+  try {
+    const { stdout, stderr } = await run(BIN, args, { cwd, maxBuffer: 1 << 26 });
+    return { code: 0, stdout, stderr };
+  } catch (e) {
+    const err = e as { code?: number; stdout?: string; stderr?: string };
+    return { code: typeof err.code === 'number' ? err.code : -1, stdout: err.stdout ?? '', stderr: err.stderr ?? '' };
+  }
+}
+
+let dir: string;
+let json: Record<string, any>;
+
+beforeAll(async () => {
+  dir = mkdtempSync(join(tmpdir(), 'skyfold-report-'));
+  expect((await skyfold(dir, 'init', '-o', 'demo.yaml')).code).toBe(0);
+  const r = await skyfold(dir, 'report', 'demo.yaml', '-o', 'out', '--rays', '20000', '--json');
+  expect(r.code, r.stderr).toBe(0);
+  json = JSON.parse(r.stdout);
+});
+
+afterAll(() => rmSync(dir, { recursive: true, force: true }));
+
+describe('skyfold report', () => {
+  it('prints every figure under stable keys and writes the files', () => {
+    for (const k of ['coverage', 'pixels', 'resolution', 'brightness', 'spill', 'focus', 'safety']) expect(json).toHaveProperty(k);
+    expect(Math.abs(json.coverage.fraction - json.coverage.fractionByInverse)).toBeLessThan(0.005);
+    for (const f of ['report.html', 'report.json', 'side-view.png', 'safety-plan.png', 'frame.png', 'resolution.png', 'brightness.png']) {
+      expect(existsSync(join(dir, 'out', f)), f).toBe(true);
+    }
+    expect(JSON.parse(readFileSync(join(dir, 'out', 'report.json'), 'utf8')).coverage.fraction).toBe(json.coverage.fraction);
+  });
+
+  it('makes a page that needs nothing from outside', () => {
+    const html = readFileSync(join(dir, 'out', 'report.html'), 'utf8');
+    expect(html).not.toMatch(/(src|href)="(https?:)?\/\//);
+    expect(html).not.toMatch(/<script/);
+    expect(html).toMatch(/Never look into the beam/);
+    expect((html.match(/<img src="data:image\/png;base64,/g) ?? []).length).toBe(5);
+  });
+
+  it('refuses a missing output folder option and a bad rig with exit 2 and one line', async () => {
+    const a = await skyfold(dir, 'report', 'demo.yaml');
+    expect(a.code).toBe(2);
+    const b = await skyfold(dir, 'report', 'nothing.yaml', '-o', 'x');
+    expect(b.code).toBe(2);
+    expect(b.stderr.trim().split('\n')).toHaveLength(1);
+    expect(b.stderr).toMatch(/nothing\.yaml: cannot read the rig file: no such file/);
+  });
+});
+
+describe.skipIf(!HAVE_CHROMIUM)('the report page in headless Chromium', () => {
+  it('opens without errors and shows its pictures', async () => {
+    const profile = mkdtempSync(join(tmpdir(), 'skyfold-chromium-')); // a fresh --user-data-dir
+    const context = await chromium.launchPersistentContext(profile, {
+      executablePath: CHROMIUM,
+      headless: true,
+      args: ['--headless', '--no-sandbox', '--disable-gpu', '--disable-quic', '--no-first-run', '--disable-background-networking', '--disable-component-update', '--disable-sync'],
+      timeout: 60_000,
+    });
+    try {
+      const page = await context.newPage();
+      const errors: string[] = [];
+      page.on('console', (m) => {
+        if (m.type() === 'error') errors.push(m.text());
+      });
+      page.on('pageerror', (e) => errors.push(e.message));
+      await page.goto(pathToFileURL(join(dir, 'out', 'report.html')).href, { waitUntil: 'load' });
+      const widths = await page.$$eval('img', (imgs) => imgs.map((i) => (i as HTMLImageElement).complete && (i as HTMLImageElement).naturalWidth));
+      expect(widths).toHaveLength(5);
+      for (const w of widths) expect(w).toBeGreaterThan(0);
+      expect(await page.title()).toMatch(/skyfold report/);
+      expect(errors).toEqual([]);
+    } finally {
+      await context.close();
+      rmSync(profile, { recursive: true, force: true });
+    }
+  });
+});
+
+describe('skyfold plan', () => {
+  it('improves the deliberately poor placement and writes the best rig', async () => {
+    const r = await skyfold(dir, 'plan', POOR, '--vary', 'projector.position', '--evaluations', '150', '--seed', '2', '-o', 'best.yaml', '--json');
+    expect(r.code, r.stderr).toBe(0);
+    const p = JSON.parse(r.stdout);
+    expect(p.best.length).toBeGreaterThan(0);
+    expect(p.best[0].figures.score).toBeGreaterThan(p.current.figures.score);
+    const doc = parse(readFileSync(join(dir, 'best.yaml'), 'utf8'));
+    expect(doc.projector.position).toEqual(p.best[0].rig.projector.position);
+    // the written rig is a rig skyfold reads
+    expect((await skyfold(dir, 'probe', 'best.yaml', '--pixel', '960,600')).code).toBe(0);
+  });
+
+  it('refuses an unknown objective and an unknown field with exit 2', async () => {
+    expect((await skyfold(dir, 'plan', POOR, '--objective', 'speed')).code).toBe(2);
+    const b = await skyfold(dir, 'plan', POOR, '--vary', 'dome.radius');
+    expect(b.code).toBe(2);
+    expect(b.stderr).toMatch(/cannot vary "dome.radius"/);
+  });
+});
