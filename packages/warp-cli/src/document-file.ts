@@ -32,7 +32,8 @@ export function parseDocumentText(text: string, label: string): unknown {
   if (doc.errors.length > 0) {
     const err = doc.errors[0];
     const lp = err.linePos?.[0];
-    const where = lp ? `line ${lp.line}, column ${lp.col}: ` : '';
+    const [line, col] = lp ? [lp.line, lp.col] : lineCol(text, err.pos[0]);
+    const where = `line ${line}, column ${col}: `;
     const msg = err.message.split('\n')[0].replace(/ at line \d+, column \d+:?$/, '');
     throw new UserError(`${label}: ${where}YAML syntax error: ${msg}`);
   }

@@ -2,7 +2,7 @@
  * The angular (equidistant) fisheye of dome masters (DESIGN.md "Fisheye convention"): radius from the
  * centre ∝ angle from the zenith; front of the dome at the bottom of the frame, viewer's right on the right.
  */
-import { safeAcos, type ReadonlyVec3, type Vec3 } from './math.js';
+import type { ReadonlyVec3, Vec3 } from './math.js';
 
 /**
  * Unit direction → normalized fisheye (u, v) for a content field of view `fov` (radians):
@@ -10,8 +10,9 @@ import { safeAcos, type ReadonlyVec3, type Vec3 } from './math.js';
  * The zenith maps to the centre; directions below the fov's edge give ρ > 0.5 (outside the circle).
  */
 export function directionToFisheye(out: [number, number], d: ReadonlyVec3, fov: number): [number, number] {
-  const theta = safeAcos(d[2]);
   const h = Math.sqrt(d[0] * d[0] + d[1] * d[1]);
+  // atan2 rather than acos(z): acos loses half the digits within a hair of the zenith
+  const theta = Math.atan2(h, d[2]);
   if (h < 1e-300) {
     // straight up (or down): azimuth undefined; the zenith is the centre
     out[0] = 0.5;

@@ -72,7 +72,8 @@ export function azAltFromDirection(d: ReadonlyVec3): [number, number] {
   let az = Math.atan2(d[0], d[1]);
   if (az < 0) az += 2 * Math.PI;
   if (az >= 2 * Math.PI) az = 0;
-  return [az, safeAsin(d[2])];
+  // atan2 rather than asin(z): asin loses half the digits near the zenith
+  return [az, Math.atan2(d[2], Math.hypot(d[0], d[1]))];
 }
 
 /** Angle between two unit vectors, accurate near 0 and π (2·atan2(|a−b|, |a+b|)). */

@@ -25,6 +25,8 @@ export function rigWarnings(rig: Rig): string[] {
     const centreInFrame = c !== null && insideFrame(f, c[0], c[1]);
     if (!centreInFrame) {
       warnings.push("the projector's frame misses the mirror entirely: check projector.lookAt, projector.lensShift and mirror.center");
+    } else {
+      warnings.push("the projector's frame sees only the back of the mirror or its mount (outside the reflective cap): check mirror.axis and mirror.capAngle");
     }
   } else if (dome === 0) {
     warnings.push('no projector pixel reaches the dome above the springline: check the mirror axis and the projector aim');

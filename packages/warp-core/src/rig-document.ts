@@ -4,9 +4,12 @@
  */
 import { DEG, length, normalize, RAD, type Vec3 } from './math.js';
 import { RigError, validateRigGeometry, type ProjectorBody, type Rig } from './rig.js';
-import { fromMetres, isLengthUnit, LENGTH_UNITS, LengthSyntaxError, METRES_PER_UNIT, parseLengthString, type LengthUnit } from './units.js';
+import { canonicalUnit, fromMetres, isLengthUnit, LENGTH_UNITS, LengthSyntaxError, METRES_PER_UNIT, parseLengthString, type LengthUnit } from './units.js';
 
 type Doc = Record<string, unknown>;
+
+/** Lengths beyond this are typing mistakes, not rigs (and would overflow the optics). */
+const MAX_LENGTH = 1e4;
 
 /** The fields a rig document may hold, by section; used for unknown-field checks with a did-you-mean. */
 export const RIG_FIELDS: Readonly<Record<string, readonly string[]>> = {
@@ -58,7 +61,7 @@ export function didYouMean(name: string, known: readonly string[]): string | und
       best = k;
     }
   }
-  return best !== undefined && bestD <= Math.max(2, Math.floor(best.length / 3)) ? best : undefined;
+  return best !== undefined && bestD <= Math.max(1, Math.floor(best.length / 3)) ? best : undefined;
 }
 
 /** Reads lengths, angles and vectors from one document with one default unit. */
@@ -85,6 +88,9 @@ export class FieldReader {
     }
     if ((what === 'positive' && !(metres > 0)) || (what === 'non-negative' && !(metres >= 0)) || !Number.isFinite(metres)) {
       throw new RigError(field, `expected ${expected}, got ${showValue(v)}`);
+    }
+    if (Math.abs(metres) > MAX_LENGTH) {
+      throw new RigError(field, `expected ${expected} within 10 km, got ${showValue(v)}`);
     }
     return metres;
   }
@@ -154,7 +160,7 @@ export function documentUnits(doc: Doc, field = 'units'): LengthUnit {
   const u = doc.units;
   if (u === undefined || u === null) return 'm';
   if (!isLengthUnit(u)) {
-    const hint = typeof u === 'string' ? didYouMean(u, LENGTH_UNITS) : undefined;
+    const hint = typeof u === 'string' ? (canonicalUnit(u) ?? didYouMean(u, LENGTH_UNITS)) : undefined;
     throw new RigError(field, `unknown unit ${showValue(u)} (expected one of ${LENGTH_UNITS.join(', ')})${hint ? `; did you mean "${hint}"?` : ''}`);
   }
   return u;
@@ -218,8 +224,9 @@ export function rigFromDocument(input: unknown): Rig {
   if (!Array.isArray(resV) || resV.length !== 2 || !resV.every((x) => typeof x === 'number' && Number.isInteger(x) && x > 0)) {
     throw new RigError('projector.resolution', `expected two positive whole numbers [width, height], got ${showValue(resV)}`);
   }
-  const throwRatio = r.number(need(proj, 'throwRatio', 'projector'), 'projector.throwRatio', (x) => x > 0, 'a positive number (throw distance / image width)');
+  const throwRatio = r.number(need(proj, 'throwRatio', 'projector'), 'projector.throwRatio', (x) => x > 0 && x >= 1e-3 && x <= 1e3, 'a positive number (throw distance / image width, 0.001 to 1000)');
   const lensShift = proj.lensShift === undefined ? ([0, 0] as [number, number]) : r.pair(proj.lensShift, 'projector.lensShift');
+  if (Math.abs(lensShift[0]) > 100 || Math.abs(lensShift[1]) > 100) throw new RigError('projector.lensShift', `expected fractions of the image size (within ±100), got ${showValue(proj.lensShift)}`);
   let body: ProjectorBody | undefined;
   if (proj.body !== undefined) {
     const b = section(proj, 'body', true)!;

@@ -3,7 +3,7 @@
  * Rig files speak degrees and the file's units; `rig-document.ts` converts at that boundary.
  */
 import { cross, DEG, dot, length, normalize, safeAcos, scale, sub, type ReadonlyVec3, type Vec3 } from './math.js';
-import type { LengthUnit } from './units.js';
+import { formatLength, type LengthUnit } from './units.js';
 
 export interface DomeModel {
   /** Radius of the dome sphere, centred on the world origin. */
@@ -88,14 +88,16 @@ export function projectorBasis(p: Pick<ProjectorModel, 'position' | 'lookAt' | '
   if (length(f0) < 1e-12) throw new RigError('projector.lookAt', 'must differ from projector.position');
   const forward = normalize(f0);
   const start: ReadonlyVec3 = p.up ?? [0, 0, 1];
-  const ortho = sub(start, scale(forward, dot(start, forward)));
-  if (length(ortho) < 1e-9 * Math.max(1, length(start))) {
+  // right from a cross product, then up = right × forward: orthonormal even a hair off vertical
+  const side = cross(forward, start);
+  if (length(side) < 1e-9 * Math.max(1, length(start))) {
     throw new RigError(
       p.up ? 'projector.up' : 'projector.lookAt',
       p.up ? 'must not be parallel to the optical axis' : 'the optical axis is vertical: give projector.up to say which way the picture is up',
     );
   }
-  const up0 = normalize(ortho);
+  const right0 = normalize(side);
+  const up0 = cross(right0, forward);
   // Rodrigues' rotation of up0 about forward (up0 ⊥ forward, so the axial term vanishes).
   const c = Math.cos(p.roll);
   const s = Math.sin(p.roll);
@@ -128,15 +130,16 @@ export function capFarthestDistance(m: MirrorModel): number {
 export function validateRigGeometry(rig: Rig): void {
   const R = rig.dome.radius;
   const { mirror, projector, content } = rig;
+  const L = (m: number) => formatLength(m, rig.units);
   if (!(R > 0)) throw new RigError('dome.radius', 'expected a positive length');
   if (!(mirror.radius > 0)) throw new RigError('mirror.radius', 'expected a positive length');
   if (!(mirror.capAngle > 0 && mirror.capAngle <= Math.PI)) throw new RigError('mirror.capAngle', 'expected an angle in (0, 180] degrees');
   const far = capFarthestDistance(mirror);
   if (!(far < R)) {
-    throw new RigError('mirror.center', `the mirror is not inside the dome (its cap reaches ${far.toFixed(3)} m from the dome centre; the dome radius is ${R.toFixed(3)} m)`);
+    throw new RigError('mirror.center', `the mirror is not inside the dome (its cap reaches ${L(far)} from the dome centre; the dome radius is ${L(R)})`);
   }
   const pd = length(projector.position);
-  if (!(pd < R)) throw new RigError('projector.position', `the projector is outside the dome (${pd.toFixed(3)} m from the centre; the dome radius is ${R.toFixed(3)} m)`);
+  if (!(pd < R)) throw new RigError('projector.position', `the projector is outside the dome (${L(pd)} from the centre; the dome radius is ${L(R)})`);
   const pm = length(sub(projector.position, mirror.center));
   if (!(pm > mirror.radius)) throw new RigError('projector.position', 'the projector is inside the mirror sphere');
   const [w, h] = projector.resolution;

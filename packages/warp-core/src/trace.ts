@@ -170,7 +170,7 @@ export class Tracer {
         wy *= iw;
         wz *= iw;
         const h = Math.sqrt(wx * wx + wy * wy);
-        const theta = Math.acos(wz > 1 ? 1 : wz < -1 ? -1 : wz);
+        const theta = Math.atan2(h, wz); // not acos(wz): exact near the zenith
         if (h > 1e-300) {
           const q = theta * invFov / h;
           u[k] = 0.5 + q * wx;

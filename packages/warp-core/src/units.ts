@@ -18,6 +18,11 @@ const UNIT_ALIASES: Readonly<Record<string, LengthUnit>> = {
   in: 'in', inch: 'in', inches: 'in', '"': 'in', '″': 'in',
 };
 
+/** The unit a spelled-out or symbol name stands for ("feet" → ft), if any. */
+export function canonicalUnit(s: string): LengthUnit | undefined {
+  return UNIT_ALIASES[s.toLowerCase()] ?? UNIT_ALIASES[s];
+}
+
 export function isLengthUnit(s: unknown): s is LengthUnit {
   return typeof s === 'string' && (LENGTH_UNITS as readonly string[]).includes(s);
 }
