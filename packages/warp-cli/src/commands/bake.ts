@@ -56,6 +56,7 @@ export function bakeSummary(r: BakeResult, files: string[]): Record<string, unkn
     cellsMeasured: a.cells,
     cellsOverTolerance: a.overTolerance,
     worstAt: a.worstAt,
+    triangles: a.triangles,
     notes: r.notes,
   };
 }
@@ -120,7 +121,8 @@ export function registerBake(program: Command): void {
         `lit vertices    ${(result.litFraction * 100).toFixed(1)}%`,
         `error, p99      ${f(a.errorP99Projector)} projector px   ${f(a.errorP99Px)} dome-master px (N = ${opts.masterSize})`,
         `error, max      ${f(a.errorMaxProjector)} projector px   ${f(a.errorMaxPx)} dome-master px`,
-        `tolerance       ${opts.tolerance} projector px; ${(a.overTolerance * 100).toFixed(2)}% of lit cells exceed it`,
+        `as triangles    p99 ${f(a.triangles.errorP99Projector)}, max ${f(a.triangles.errorMaxProjector)} projector px (the two triangles per cell a GPU draws from the .glb)`,
+        `tolerance       ${opts.tolerance} projector px; ${(a.overTolerance * 100).toFixed(2)}% of lit cells exceed it (${(a.triangles.overTolerance * 100).toFixed(2)}% as triangles)`,
         `brightness      ${result.brightnessMin.toFixed(3)} .. ${result.brightnessMax.toFixed(3)} (strength ${opts.brightness}, floor ${opts.brightnessFloor})`,
         ...result.notes.map((n) => `note            ${n}`),
         ...targets.map((t) => `wrote           ${t.path} (${t.format})`),

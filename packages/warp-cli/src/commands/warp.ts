@@ -130,15 +130,21 @@ async function warpFrames(map: MapSource, mapSettings: MapSettings, inputs: stri
   const all = expandInputs(inputs);
   const frames = selectFrames(all, opts.frames ? parseFrameRange(opts.frames) : undefined, opts.shard ? parseShard(opts.shard) : undefined);
   const outDir = resolve(opts.output!);
-  for (const f of all) {
-    if (dirname(resolve(f.path)) === outDir) throw new UserError(`${opts.output}: is the folder of the input ${f.path}; write the warped frames to another folder`);
-  }
   try {
     mkdirSync(outDir, { recursive: true });
   } catch (e) {
     throw new UserError(`${opts.output}: cannot create the output folder: ${(e as Error).message}`);
   }
-  if (!statSync(outDir).isDirectory()) throw new UserError(`${opts.output}: is not a folder`);
+  const outStat = statSync(outDir);
+  if (!outStat.isDirectory()) throw new UserError(`${opts.output}: is not a folder`);
+  // the same folder under any name (a symlink, a relative path) is refused: compare device and inode
+  const inputDirs = new Map(all.map((f) => [dirname(resolve(f.path)), f.path]));
+  for (const [d, example] of inputDirs) {
+    const st = statSync(d);
+    if (st.dev === outStat.dev && st.ino === outStat.ino) {
+      throw new UserError(`${opts.output}: is the folder of the input ${example}; write the warped frames to another folder`);
+    }
+  }
   const host = hostname().replace(/[^A-Za-z0-9]/g, '');
   removeStalePartials(outDir, host);
 
@@ -164,17 +170,26 @@ async function warpFrames(map: MapSource, mapSettings: MapSettings, inputs: stri
   const failures: { input: string; reason: string }[] = [];
   let done = 0;
   if (jobs.length > 0) {
-    // the source size comes from the first frame whose header can be read
-    let size: [number, number] | undefined;
+    // the source size is the most common one among the frames' headers, so one odd frame at the
+    // head of a show fails alone
+    const sizes = new Map<string, number>();
     for (const j of jobs) {
       try {
         const m = await sharp(j.input, { limitInputPixels: false }).metadata();
         if (m.width && m.height) {
-          size = [m.width, m.height];
-          break;
+          const key = `${m.width}x${m.height}`;
+          sizes.set(key, (sizes.get(key) ?? 0) + 1);
         }
       } catch {
         // unreadable: reported when its turn comes
+      }
+    }
+    let size: [number, number] | undefined;
+    let best = 0;
+    for (const [key, count] of sizes) {
+      if (count > best) {
+        best = count;
+        size = key.split('x').map(Number) as [number, number];
       }
     }
     const remapMap: RemapMap | undefined = size ? map.build(size, mapSettings) : undefined;

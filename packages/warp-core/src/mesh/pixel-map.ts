@@ -6,7 +6,7 @@ import { DEG } from '../math.js';
 import type { Rig } from '../rig.js';
 import type { RemapMap } from '../remap/types.js';
 import { HitKind, Tracer } from '../trace.js';
-import { BAKE_DEFAULTS, type BakeOptions } from './bake.js';
+import { BAKE_DEFAULTS, interpolateCell, type BakeOptions } from './bake.js';
 import { brightnessFactor, contentVisible, domeAreaOnGrid, featherMask, referenceArea } from './field.js';
 import type { WarpMesh } from './mesh.js';
 
@@ -89,7 +89,7 @@ export function pixelMapFromRig(rig: Rig, size: [number, number], options: Parti
   return finishMap(g.u, g.v, gain, size, o, W, H);
 }
 
-/** Interpolates a baked mesh bilinearly at every projector pixel centre: the RemapMap the mesh implies. */
+/** Interpolates a baked mesh at every projector pixel centre over the same two triangles per cell a GPU draws: the RemapMap the mesh implies. */
 export function pixelMapFromMesh(mesh: WarpMesh, size: [number, number], o: SourceOrientation = {}): RemapMap {
   const { cols, rows, width: W, height: H } = mesh;
   const n = W * H;
@@ -107,18 +107,12 @@ export function pixelMapFromMesh(mesh: WarpMesh, size: [number, number], o: Sour
       const c = Math.min(cols - 2, Math.floor(gx));
       const fx = gx - c;
       const k00 = r * cols + c;
-      const k10 = k00 + 1;
-      const k01 = k00 + cols;
-      const k11 = k01 + 1;
-      const w00 = (1 - fx) * (1 - fy);
-      const w10 = fx * (1 - fy);
-      const w01 = (1 - fx) * fy;
-      const w11 = fx * fy;
       const k = j * W + i;
-      u[k] = w00 * mesh.u[k00] + w10 * mesh.u[k10] + w01 * mesh.u[k01] + w11 * mesh.u[k11];
-      v[k] = w00 * mesh.v[k00] + w10 * mesh.v[k10] + w01 * mesh.v[k01] + w11 * mesh.v[k11];
-      const m = w00 * mesh.mask[k00] + w10 * mesh.mask[k10] + w01 * mesh.mask[k01] + w11 * mesh.mask[k11];
-      const b = w00 * mesh.brightness[k00] + w10 * mesh.brightness[k10] + w01 * mesh.brightness[k01] + w11 * mesh.brightness[k11];
+      // the two triangles per cell a GPU draws from the .glb, so the CPU warp matches players
+      u[k] = interpolateCell(mesh.u, k00, cols, fx, fy, true);
+      v[k] = interpolateCell(mesh.v, k00, cols, fx, fy, true);
+      const m = interpolateCell(mesh.mask, k00, cols, fx, fy, true);
+      const b = interpolateCell(mesh.brightness, k00, cols, fx, fy, true);
       gain[k] = m > 0 ? m * b : 0;
     }
   }
