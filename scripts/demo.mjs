@@ -44,12 +44,14 @@ skyfold('probe', rig, '--pixel', '960.5,600.5', '--pixel', '100,100');
 skyfold('bake', rig, '-o', 'demo-out/mesh/demo.glb', '-o', 'demo-out/mesh/demo.mpcdi', '-o', 'demo-out/mesh/demo.obj', '-o', 'demo-out/mesh/demo.pfm', '-o', 'demo-out/mesh/demo.png', '-o', 'demo-out/mesh/demo.csv');
 const warpStatus = skyfold('warp', rig, 'demo-out/show', '-o', 'demo-out/warped');
 skyfold('simulate', rig, 'demo-out/warped/alignment_grid.png', '-o', 'demo-out/seen_alignment_grid.png', '--size', '768');
+skyfold('report', rig, '-o', 'demo-out/report');
 console.log(`
 Done. Look in demo-out/:
   show/       the dome-master frames
   mesh/       the warp mesh in six formats (demo.glb is skyfold's own; demo.mpcdi for MPCDI players)
   warped/     the pre-warped projector frames (1920x1200) to play through the mirror
   seen_alignment_grid.png   what the audience would see of the warped grid
+  report/     coverage, resolution, brightness, focus and safety: open demo-out/report/report.html
 
 Safety: never look into the beam (it crosses the dome at eye height); secure the mirror and its stand
 so they cannot tip; keep aisles and exits clear in the dark; mind hot equipment and cables; local fire
