@@ -1,4 +1,5 @@
 export * from './math.js';
+export * from './random.js';
 export * from './units.js';
 export * from './rig.js';
 export * from './rig-document.js';

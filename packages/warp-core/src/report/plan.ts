@@ -7,6 +7,7 @@
  * smaller violation wins — so the answer never breaks a bound. Deterministic for a given seed.
  */
 import { DEG, length, normalize, RAD, sub, type Vec3 } from '../math.js';
+import { seededRandom } from '../random.js';
 import { RigError, validateRigGeometry, type Rig } from '../rig.js';
 import { projectorFrame } from '../projector.js';
 import { Tracer } from '../trace.js';
@@ -98,18 +99,6 @@ export interface PlanResult {
   /** The bounds searched, by field name. */
   bounds: Record<string, [number, number]>;
   notes: string[];
-}
-
-/** A small, fast, seeded generator (mulberry32), so a seed always gives the same search. */
-export function planRandom(seed: number): () => number {
-  let a = seed >>> 0;
-  return () => {
-    a = (a + 0x6d2b79f5) >>> 0;
-    let t = a;
-    t = Math.imul(t ^ (t >>> 15), t | 1);
-    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-  };
 }
 
 function cloneRig(rig: Rig): Rig {
@@ -320,7 +309,7 @@ export function planRig(rig: Rig, options: Partial<PlanOptions> = {}): PlanResul
   if (!rig.projector.body) notes.push(`projector.body is not given: a ${NOMINAL_BODY.width * 100} × ${NOMINAL_BODY.length * 100} × ${NOMINAL_BODY.height * 100} cm body is assumed to keep the projector out of the reflected light`);
   const dims = dimensions(rig, o.vary, notes);
   const n = dims.length;
-  const rand = planRandom(o.seed);
+  const rand = seededRandom(o.seed);
   const build = (x: readonly number[]) => {
     const g = cloneRig(rig);
     for (let i = 0; i < n; i++) dims[i].apply(g, x[i]);

@@ -4,19 +4,8 @@
  * DESIGN.md; pixels outside the fov circle are black.
  */
 import { DEG } from '../math.js';
+import { seededRandom } from '../random.js';
 import type { ImageBuffer } from '../remap/types.js';
-
-/** A small deterministic generator (mulberry32), so demo frames are the same on every machine. */
-export function seededRandom(seed: number): () => number {
-  let a = seed >>> 0;
-  return () => {
-    a = (a + 0x6d2b79f5) >>> 0;
-    let t = a;
-    t = Math.imul(t ^ (t >>> 15), t | 1);
-    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-  };
-}
 
 /**
  * A night sky: a faint horizon glow and `count` stars of random magnitude on the sphere, turned by
