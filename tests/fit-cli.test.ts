@@ -181,7 +181,7 @@ describe('skyfold fit', () => {
 
   it('a rig given as the measurement file is refused by its first unknown field', async () => {
     expect(await run('fit', RIG, RIG)).toBe(2);
-    expect(stderr).toBe(`skyfold: ${RIG}: dome: unknown field; did you mean "name"?\n`);
+    expect(stderr).toBe(`skyfold: ${RIG}: dome: unknown field (known here: units, name, notes, measurements, observations, free)\n`);
   });
 });
 

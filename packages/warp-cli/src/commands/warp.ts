@@ -138,7 +138,8 @@ async function warpFrames(map: MapSource, mapSettings: MapSettings, inputs: stri
   const outStat = statSync(outDir);
   if (!outStat.isDirectory()) throw new UserError(`${opts.output}: is not a folder`);
   // the same folder under any name (a symlink, a relative path) is refused: compare device and inode
-  const inputDirs = new Map(all.map((f) => [dirname(resolve(f.path)), f.path]));
+  const inputDirs = new Map<string, string>();
+  for (const f of all) if (!inputDirs.has(dirname(resolve(f.path)))) inputDirs.set(dirname(resolve(f.path)), f.path);
   for (const [d, example] of inputDirs) {
     const st = statSync(d);
     if (st.dev === outStat.dev && st.ino === outStat.ino) {
