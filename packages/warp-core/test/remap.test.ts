@@ -1,5 +1,6 @@
 import { describe, expect, it } from 'vitest';
 import {
+  buildPyramid,
   createImageLike,
   linearToSrgb,
   remap,
@@ -210,9 +211,126 @@ describe('remap: area', () => {
     expect(Math.abs(area.mean - 127.5)).toBeLessThan(2);
     expect(area.rms).toBeLessThan(8); // every pixel close to grey
     expect(nearest.rms).toBeGreaterThan(100); // pixels are 0 or 255
-    // Capping the samples at 1 per axis turns area back into bilinear, and the aliasing returns.
+    // Bilinear takes one sample per pixel and aliases too.
+    const bilinear = stats(remap(src, minify, { filter: 'bilinear' }));
+    expect(bilinear.rms).toBeGreaterThan(30);
+    // One probe per pixel still reads a level coarse enough for the whole footprint: no aliasing.
     const capped = stats(remap(src, minify, { filter: 'area', maxSamples: 1 }));
-    expect(capped.rms).toBeGreaterThan(30);
+    expect(capped.rms).toBeLessThan(8);
+  });
+});
+
+describe('remap: area on the pyramid', () => {
+  // A minifying, anisotropic, rotated and slightly curved map: footprints 2–6 source pixels long
+  // and 1.5–3 wide, so probe counts and pyramid levels vary across the frame.
+  const SIZE = 320;
+  const OW = 48;
+  const OH = 40;
+  const warp = (u: number, v: number): [number, number] => {
+    const a = (u - OW / 2) * (4.2 + 0.04 * v);
+    const b = (v - OH / 2) * (1.6 + 0.03 * u);
+    const th = 0.5 + 0.004 * u;
+    return [SIZE / 2 + Math.cos(th) * a - Math.sin(th) * b, SIZE / 2 + Math.sin(th) * a + Math.cos(th) * b];
+  };
+  const map = mapOf(OW, OH, (i, j) => warp(i + 0.5, j + 0.5));
+  // A smooth pattern (period ≈ 40 px) under a 1-pixel checkerboard of ±40 codes (all aliasing, no signal).
+  const value = (p: number, q: number) =>
+    127.5 + 55 * Math.sin(p / 6.3) * Math.cos(q / 7.1) + ((p + q) % 2 === 0 ? -40 : 40);
+  const src = image(SIZE, SIZE, 1, (k) => Math.round(value(k % SIZE, Math.floor(k / SIZE))));
+
+  /** Brute force: the mean of the source over the output pixel's exact footprint, 48 × 48 points. */
+  function boxReference(): Float64Array {
+    const S = 48;
+    const ref = new Float64Array(OW * OH);
+    for (let j = 0; j < OH; j++) {
+      for (let i = 0; i < OW; i++) {
+        let sum = 0;
+        for (let b = 0; b < S; b++) {
+          for (let a = 0; a < S; a++) {
+            const [x, y] = warp(i + (a + 0.5) / S, j + (b + 0.5) / S);
+            sum += src.data[Math.floor(y) * SIZE + Math.floor(x)];
+          }
+        }
+        ref[j * OW + i] = sum / (S * S);
+      }
+    }
+    return ref;
+  }
+
+  it('comes within a few code values of a brute-force box filter over the footprint', () => {
+    const ref = boxReference();
+    const error = (img: ImageBuffer) => {
+      let sum = 0;
+      let max = 0;
+      for (let k = 0; k < ref.length; k++) {
+        const e = Math.abs(img.data[k] - ref[k]);
+        sum += e;
+        max = Math.max(max, e);
+      }
+      return { mean: sum / ref.length, max };
+    };
+    const area = error(remap(src, map, { filter: 'area' }));
+    const bilinear = error(remap(src, map, { filter: 'bilinear' }));
+    // Measured: area mean 1.7, max 10 — trilinear levels blur a little more than a box (and the box
+    // itself lets some of the checkerboard through at the footprint's edges); bilinear mean 11, max 41.
+    expect(area.mean).toBeLessThan(2.5);
+    expect(area.max).toBeLessThan(12);
+    expect(bilinear.mean).toBeGreaterThan(8); // the checkerboard aliases without the footprint
+    expect(bilinear.max).toBeGreaterThan(30);
+  });
+
+  it('gives the same codes with a prepared pyramid, in bands, and per channel', () => {
+    for (const bits of [8, 16] as const) {
+      const max = bits === 8 ? 255 : 65535;
+      const rgb = image(SIZE, SIZE, 3, noise(max, 5), bits);
+      const whole = remap(rgb, map, { filter: 'area' });
+      const pyramid = buildPyramid(rgb);
+      const out = createImageLike(rgb, OW, OH);
+      for (const [rowStart, rowEnd] of [[0, 7], [7, 30], [30, OH]]) remap(rgb, map, { filter: 'area', pyramid, out, rowStart, rowEnd });
+      expect([...out.data], `${bits}-bit bands`).toEqual([...whole.data]);
+      // The unrolled RGB and RGBA kernel against the general one, channel by channel.
+      for (const C of [3, 4] as const) {
+        const img = C === 3 ? rgb : image(SIZE, SIZE, 4, noise(max, 6), bits);
+        const all = C === 3 ? whole : remap(img, map, { filter: 'area' });
+        for (let c = 0; c < C; c++) {
+          const one = image(SIZE, SIZE, 1, (k) => img.data[k * C + c], bits);
+          const got = remap(one, map, { filter: 'area' });
+          expect([...got.data], `${bits}-bit ${C}-channel channel ${c}`).toEqual([...all.data].filter((_, k) => k % C === c));
+        }
+      }
+    }
+  });
+
+  it('reduces by 2 × 2 boxes, rounding, with the odd edge averaged with itself, and builds the half level', () => {
+    // 5×3 grey → 3×2 → 2×1 → 1×1.
+    const src5 = image(5, 3, 1, [0, 10, 20, 30, 40, 1, 11, 21, 31, 41, 100, 110, 120, 130, 140]);
+    const pyr = buildPyramid(src5);
+    expect(pyr.levels.map((l) => `${l.width}×${l.height}`)).toEqual(['5×3', '3×2', '2×1', '1×1']);
+    expect(pyr.levels[0]).toBe(src5);
+    // (0+10+1+11)/4 = 5.5 → 6; (20+30+21+31)/4 = 25.5 → 26; (40+40+41+41)/4 = 40.5 → 41; the last
+    // row is averaged with itself: (100+110)/2 = 105, (120+130)/2 = 125, 140.
+    expect([...pyr.levels[1].data]).toEqual([6, 26, 41, 105, 125, 140]);
+    expect([...pyr.levels[2].data]).toEqual([66, 91]); // (6+26+105+125)/4 = 65.5 → 66; (41+41+140+140)/4 = 90.5 → 91
+    expect([...pyr.levels[3].data]).toEqual([79]); // 78.5 → 79
+    // The half level: the same boxes at every pixel, the last column and row clamped.
+    expect(pyr.half && `${pyr.half.width}×${pyr.half.height}`).toBe('5×3');
+    expect([...pyr.half!.data]).toEqual([6, 16, 26, 36, 41, 56, 66, 76, 86, 91, 105, 115, 125, 135, 140]);
+    // Memory is reused on a second build of the same size.
+    const first = pyr.levels[1].data;
+    const again = buildPyramid(src5, { into: pyr });
+    expect(again).toBe(pyr);
+    expect(again.levels[1].data).toBe(first);
+    expect([...again.levels[1].data]).toEqual([6, 26, 41, 105, 125, 140]);
+  });
+
+  it('rejects a pyramid of another source or of the wrong shape', () => {
+    const other = image(SIZE, SIZE, 1, () => 0);
+    expect(() => remap(src, map, { filter: 'area', pyramid: buildPyramid(other) })).toThrow(
+      'Expected options.pyramid built from src (levels[0] is src)',
+    );
+    const wrong = buildPyramid(src, { levels: 3 });
+    wrong.levels[2] = wrong.levels[1];
+    expect(() => remap(src, map, { filter: 'area', pyramid: wrong })).toThrow('Expected 80×80×1 8-bit for options.pyramid.levels[2]');
   });
 });
 

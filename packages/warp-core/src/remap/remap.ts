@@ -6,9 +6,11 @@ import {
   srgbEncodeLut16,
   srgbEncodeLut8,
 } from '../srgb.js';
-import { areaRow } from './area.js';
+import { areaRow, type AreaLevels } from './area.js';
 import { bilinearRow } from './bilinear.js';
 import { nearestRow } from './nearest.js';
+import { halfLevel, pyramidDepth, reduceLevel, type SourcePyramid } from './pyramid.js';
+import { WasmLevels } from './wasm/pyramid-kernel.js';
 import type { ImageBuffer, RemapFilter, RemapMap } from './types.js';
 
 export interface RemapOptions {
@@ -20,8 +22,14 @@ export interface RemapOptions {
   rowStart?: number;
   /** One past the last output row to compute (default map.height). */
   rowEnd?: number;
-  /** 'area' filter: most samples per output pixel along each axis (default 8). */
+  /** 'area' filter: most probes along a footprint's long axis (default 8); coarser levels take the rest. */
   maxSamples?: number;
+  /**
+   * 'area' filter: the source's mip pyramid from buildPyramid(src), when one frame is remapped in
+   * several calls (row bands) and should reduce the source once. Without it each call builds the
+   * levels it needs into scratch memory kept between calls.
+   */
+  pyramid?: SourcePyramid;
   /**
    * Scale colour in linear light, decoding and re-encoding sRGB (default true, DESIGN.md
    * "Brightness"); false scales code values directly, for data that is already linear.
@@ -86,11 +94,12 @@ export function remap(src: ImageBuffer, map: RemapMap, options: RemapOptions = {
   }
   const linearGain = options.linearGain ?? REMAP_DEFAULTS.linearGain;
   const sixteen = src.data instanceof Uint16Array;
+  const levels = filter === 'area' ? areaLevels(src, options.pyramid) : undefined;
   for (let j = rowStart; j < rowEnd; j++) {
     let scaled: boolean;
     if (filter === 'bilinear') scaled = bilinearRow(src, map, out, j);
     else if (filter === 'nearest') scaled = nearestRow(src, map, out, j);
-    else scaled = areaRow(src, map, out, j, maxSamples);
+    else scaled = areaRow(levels!, map, out, j, maxSamples);
     // Scale the row while it is still in cache; a mask-only row (gains 0 and 1) is already final.
     if (!scaled) continue;
     if (!linearGain) gainRowCodes(out, map.gain, j);
@@ -98,6 +107,63 @@ export function remap(src: ImageBuffer, map: RemapMap, options: RemapOptions = {
     else gainRow8(out.data as Uint8Array, out.channels, map.gain, j * map.width, map.width);
   }
   return out;
+}
+
+// Levels 1 and up and the half level of the last source reduced in JavaScript, reused by the next call.
+const scratchLevels: ImageBuffer[] = [];
+const scratchHalf: { image?: ImageBuffer } = {};
+
+function areaLevels(src: ImageBuffer, pyramid: SourcePyramid | undefined): AreaLevels {
+  const top = pyramidDepth(src.width, src.height) - 1;
+  let levels = [src];
+  let half: ImageBuffer | undefined;
+  if (pyramid) {
+    const given = pyramid.levels;
+    if (!Array.isArray(given) || given[0]?.data !== src.data) {
+      throw new Error('Expected options.pyramid built from src (levels[0] is src)');
+    }
+    const check = (g: ImageBuffer, w: number, h: number, name: string) => {
+      if (g.width !== w || g.height !== h || g.channels !== src.channels || g.data.constructor !== src.data.constructor || g.data.length !== w * h * src.channels) {
+        throw new Error(`Expected ${w}×${h}×${src.channels} ${depthName(src)} for options.pyramid.${name}`);
+      }
+    };
+    let w = src.width;
+    let h = src.height;
+    for (let l = 1; l < given.length; l++) {
+      w = (w + 1) >> 1;
+      h = (h + 1) >> 1;
+      check(given[l], w, h, `levels[${l}]`);
+    }
+    if (pyramid.half) check(pyramid.half, src.width, src.height, 'half');
+    levels = given.slice();
+    half = pyramid.half;
+  }
+  // Levels not given are made on demand: 8-bit ones in WebAssembly when it is there (the whole
+  // pyramid's room reserved at the first), others in JavaScript, into scratch memory without a
+  // pyramid and into new memory with one (which the caller's pyramid lacked).
+  let fast: WasmLevels | null | undefined = pyramid ? null : undefined;
+  const wasm = () => (fast === undefined ? (fast = WasmLevels.create(src, top + 1)) : fast);
+  const lv: AreaLevels = {
+    levels,
+    built: levels.length,
+    top,
+    half,
+    make: (l) => {
+      const k = wasm();
+      if (k) return k.level(l);
+      const made = reduceLevel(lv.levels[l - 1], pyramid ? undefined : scratchLevels[l]);
+      if (!pyramid) scratchLevels[l] = made;
+      return made;
+    },
+    makeHalf: () => {
+      const k = wasm();
+      if (k) return k.half();
+      const made = halfLevel(src, pyramid ? undefined : scratchHalf.image);
+      if (!pyramid) scratchHalf.image = made;
+      return made;
+    },
+  };
+  return lv;
 }
 
 /** An ImageBuffer of the given size with the channels and depth of `like`, zero-filled. */
