@@ -170,7 +170,8 @@ export class Tracer {
         wy *= iw;
         wz *= iw;
         const h = Math.sqrt(wx * wx + wy * wy);
-        const theta = Math.atan2(h, wz); // not acos(wz): exact near the zenith
+        // acos is fast but loses digits within a hair of the zenith and nadir: atan2 there
+        const theta = wz < 0.9 && wz > -0.9 ? Math.acos(wz) : Math.atan2(h, wz);
         if (h > 1e-300) {
           const q = theta * invFov / h;
           u[k] = 0.5 + q * wx;
