@@ -7,7 +7,7 @@
  * Row order is the catch: netpbm stores the rows bottom to top ('bottom-up'); the VESA MPCDI text stores
  * the first row at the top ('top-down'). Callers say which; in memory data is always top row first.
  */
-import type { WarpMesh } from '@skyfold/warp-core';
+import { createMesh, type WarpMesh } from '@skyfold/warp-core';
 
 export type PfmRowOrder = 'bottom-up' | 'top-down';
 
@@ -119,17 +119,7 @@ export function readMeshPfm(bytes: Uint8Array, options: ReadMeshPfmOptions = {})
   const cols = img.width;
   const rows = img.height;
   const n = cols * rows;
-  const mesh: WarpMesh = {
-    cols,
-    rows,
-    width: options.width ?? cols - 1,
-    height: options.height ?? rows - 1,
-    u: new Float32Array(n),
-    v: new Float32Array(n),
-    brightness: new Float32Array(n),
-    mask: new Float32Array(n),
-    meta: options.meta ?? {},
-  };
+  const mesh = createMesh(cols, rows, options.width ?? cols - 1, options.height ?? rows - 1, options.meta ?? {});
   for (let i = 0; i < n; i++) {
     mesh.u[i] = img.data[i * 3];
     mesh.v[i] = img.data[i * 3 + 1];

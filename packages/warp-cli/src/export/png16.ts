@@ -9,7 +9,7 @@
  * Unlit points keep their u, v and brightness with A = 0; the colour channels are not premultiplied.
  */
 import sharp from 'sharp';
-import type { WarpMesh } from '@skyfold/warp-core';
+import { createMesh, type WarpMesh } from '@skyfold/warp-core';
 
 const MAX16 = 65535;
 
@@ -66,17 +66,7 @@ export async function readMapPng(bytes: Uint8Array, options: ReadMapPngOptions =
   const cols = img.width;
   const rows = img.height;
   const n = cols * rows;
-  const mesh: WarpMesh = {
-    cols,
-    rows,
-    width: options.width ?? cols - 1,
-    height: options.height ?? rows - 1,
-    u: new Float32Array(n),
-    v: new Float32Array(n),
-    brightness: new Float32Array(n),
-    mask: new Float32Array(n),
-    meta: options.meta ?? {},
-  };
+  const mesh = createMesh(cols, rows, options.width ?? cols - 1, options.height ?? rows - 1, options.meta ?? {});
   for (let i = 0; i < n; i++) {
     mesh.u[i] = img.data[i * 4] / MAX16;
     mesh.v[i] = img.data[i * 4 + 1] / MAX16;
