@@ -64,8 +64,9 @@ export function simulationMap(rig: Rig, size: number, options: SimulateOptions =
       // weighted over the finite corners (the lit edge has unlit neighbours)
       let sum = 0;
       let wsum = 0;
-      const corners: [number, number][] = [[0, 0], [1, 0], [0, 1], [1, 1]];
-      for (const [di, dj] of corners) {
+      for (let c = 0; c < 4; c++) {
+        const di = c & 1;
+        const dj = c >> 1;
         const a = area[(j0 + dj) * nx + i0 + di];
         const w = (di ? fx : 1 - fx) * (dj ? fy : 1 - fy);
         if (Number.isFinite(a) && a > 0 && w > 0) {

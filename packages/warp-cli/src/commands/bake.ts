@@ -2,7 +2,7 @@
 import { mkdirSync, renameSync, writeFileSync } from 'node:fs';
 import { dirname, basename, join } from 'node:path';
 import { InvalidArgumentError, type Command } from 'commander';
-import { BAKE_DEFAULTS, bakeMesh, rigToDocument, type BakeResult } from '@skyfold/warp-core';
+import { BAKE_DEFAULTS, bakeMesh, rigToDocument, type BakeOptions, type BakeResult } from '@skyfold/warp-core';
 import { loadRig } from '../document-file.js';
 import { UserError } from '../errors.js';
 import { encodeMesh, formatFromPath, MESH_FORMATS, type MeshFormat } from '../export/index.js';
@@ -26,15 +26,11 @@ export function writeFileAtomic(path: string, bytes: Uint8Array | string): void 
   renameSync(tmp, path);
 }
 
-export interface BakeCliOptions {
+/** The command's options: the core's bake settings plus where and how to write. */
+export interface BakeCliOptions extends Pick<BakeOptions, 'tolerance' | 'masterSize' | 'brightness' | 'brightnessFloor' | 'feather'> {
   output: string[];
   format?: MeshFormat;
   grid?: [number, number];
-  tolerance: number;
-  masterSize: number;
-  brightness: number;
-  brightnessFloor: number;
-  feather: number;
   json?: boolean;
 }
 
