@@ -1,4 +1,6 @@
-export * from './export/index.js';
+/** @skyfold/warp-cli: the `skyfold` program, and the mesh files and rig loading it is built on. */
 export { buildProgram, main } from './main.js';
-export { loadRig, parseDocumentText } from './document-file.js';
-export { starterRigText, DEMO_RIG } from './demo-rig.js';
+export { loadRig, parseDocumentText, type LoadedRig } from './io/document-file.js';
+export { decodeMesh, encodeMesh, formatFromPath, MESH_FORMATS, type MeshFormat } from './export/index.js';
+export { readGlb, writeGlb } from './export/glb.js';
+export { DEMO_RIG, starterRigText } from './demo-rig.js';

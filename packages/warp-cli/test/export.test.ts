@@ -5,26 +5,13 @@ import sharp from 'sharp';
 // @ts-expect-error gltf-validator ships no type declarations
 import validator from 'gltf-validator';
 import { createMesh, type WarpMesh } from '@skyfold/warp-core';
-import {
-  decodeMesh,
-  decodePfm,
-  encodeMesh,
-  encodePfm,
-  formatFromPath,
-  MESH_FORMATS,
-  readCsv,
-  readGlb,
-  readMapPng,
-  readMeshPfm,
-  readMpcdi,
-  readObj,
-  writeCsv,
-  writeGlb,
-  writeMapPng,
-  writeMeshPfm,
-  writeMpcdi,
-  writeObj,
-} from '../src/export/index.ts';
+import { decodeMesh, encodeMesh, formatFromPath, MESH_FORMATS } from '../src/export/index.js';
+import { readCsv, writeCsv } from '../src/export/csv.js';
+import { readGlb, writeGlb } from '../src/export/glb.js';
+import { readMpcdi, writeMpcdi } from '../src/export/mpcdi.js';
+import { readObj, writeObj } from '../src/export/obj.js';
+import { decodePfm, encodePfm, readMeshPfm, writeMeshPfm } from '../src/export/pfm.js';
+import { readMapPng, writeMapPng } from '../src/export/png16.js';
 
 const COLS = 5;
 const ROWS = 3;

@@ -3,8 +3,8 @@ import { mkdirSync, mkdtempSync, rmSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { UserError } from '../src/errors.ts';
-import { expandInputs, naturalCompare, parseFrameRange, parseShard, selectFrames, type Frame } from '../src/warp/inputs.ts';
+import { UserError } from '../src/errors.js';
+import { expandInputs, naturalCompare, parseFrameRange, parseShard, selectFrames, type Frame } from '../src/warp/inputs.js';
 
 let dir: string;
 

@@ -1,20 +1,39 @@
-export * from './math.js';
-export * from './random.js';
-export * from './units.js';
-export * from './rig.js';
-export * from './rig-document.js';
-export * from './projector.js';
-export * from './mirror.js';
-export * from './dome.js';
-export * from './fisheye.js';
-export * from './trace.js';
-export * from './locate.js';
-export * from './mesh/index.js';
-export * from './remap/index.js';
-export * from './rig-check.js';
-export * from './calibrate/index.js';
-export * from './testcard/testcard.js';
-export * from './simulate.js';
-export * from './pattern/index.js';
-export * from './report/index.js';
-export * from './raster/index.js';
+/**
+ * @skyfold/warp-core: skyfold's pure computation — the rig, the optics, the trace and its inverse, the
+ * warp mesh, the remap kernels, calibration, the analysis figures and the placement search. Typed arrays
+ * in and out; no files, processes or images beyond typed arrays.
+ */
+export { DEG, RAD, angleBetween, azAltFromDirection, directionFromAzAlt, wrapDegrees, type ReadonlyVec3, type Vec3 } from './math.js';
+export { LENGTH_UNITS, formatLength, fromMetres, isLengthUnit, parseLengthString, toMetres, type LengthUnit } from './units.js';
+export { linearToSrgb, srgbToLinear } from './srgb.js';
+
+export { RigError, validateRigGeometry, type ContentModel, type DomeModel, type MirrorModel, type ProjectorBody, type ProjectorModel, type Rig } from './rig/model.js';
+export { rigFromDocument, rigToDocument } from './rig/document.js';
+export { rigWarnings } from './rig/warnings.js';
+
+export { pixelToRay, rayToPixel, projectorFrame, type ProjectorFrame } from './optics/projector.js';
+export { directionToFisheye, fisheyeToDirection } from './optics/fisheye.js';
+export { HitKind, Tracer, allocGridOutput, tracePixel, type GridOutput, type HitName, type TraceResult } from './trace.js';
+export { domePointFromEye, locateDirection, type LocateResult } from './locate.js';
+
+export { createMesh, meshVertexPosition, type WarpMesh } from './mesh/mesh.js';
+export { BAKE_DEFAULTS, bakeMesh, type BakeOptions, type BakeResult, type MeshAccuracy } from './mesh/bake.js';
+export { pixelMapFromMesh, pixelMapFromRig, type SourceOrientation } from './mesh/pixel-map.js';
+export { REMAP_DEFAULTS, createImageLike, remap } from './remap/remap.js';
+export type { ImageBuffer, RemapFilter, RemapMap } from './remap/types.js';
+export { simulationMap, type SimulateOptions } from './simulate.js';
+
+export { FREE_QUANTITIES, measurementsFromDocument, parseFreeQuantity, type FreeQuantity, type MeasurementSet } from './calibrate/measurements.js';
+export { FIT_DEFAULTS, fitRig, type FitParameter, type FitResidual, type FitResult } from './calibrate/fit.js';
+
+export { REPORT_DEFAULTS, analyzeRig, type ReportFigures, type RigAnalysis } from './analysis/analyze.js';
+export { bodyCorners, segmentHitsBody } from './analysis/body.js';
+export { landing } from './analysis/light.js';
+export { EYE_BANDS, describeArc } from './analysis/safety.js';
+export { Fate, fateOf } from './analysis/sample.js';
+export { Sorted } from './analysis/stats.js';
+export { PLAN_DEFAULTS, PLAN_OBJECTIVES, planRig, type PlanCandidate, type PlanObjective, type PlanResult } from './placement/plan.js';
+
+export { DOME_PATTERN_DEFAULTS, drawDomePattern, type PatternDot } from './pattern/dome-master.js';
+export { drawMarkerFrame, type Marker } from './pattern/markers.js';
+export { gridCard, smoothCard, starField } from './pattern/test-card.js';

@@ -9,8 +9,8 @@
  * forward trace.
  */
 import { angleBetween, azAltFromDirection, directionFromAzAlt, dot, length, normalize, safeAcos, sub, type Vec3 } from './math.js';
-import { onCap } from './mirror.js';
-import { insideFrame, rayToPixel } from './projector.js';
+import { onCap } from './optics/mirror.js';
+import { insideFrame, rayToPixel } from './optics/projector.js';
 import type { Tracer } from './trace.js';
 
 export type LocateFailure = 'no-reflection' | 'cap' | 'behind-projector' | 'outside-frame' | 'unstable';

@@ -3,11 +3,11 @@
  * direction (the inverse trace), and how bright the light lands there. As a RemapMap from the warped
  * projector frame to an N × N dome master.
  */
-import { fisheyeToDirection } from './fisheye.js';
+import { fisheyeToDirection } from './optics/fisheye.js';
 import { azAltFromDirection } from './math.js';
 import { domeAreaOnGrid, referenceArea } from './mesh/field.js';
 import type { RemapMap } from './remap/types.js';
-import type { Rig } from './rig.js';
+import type { Rig } from './rig/model.js';
 import { locateDirection } from './locate.js';
 import { Tracer } from './trace.js';
 

@@ -2,12 +2,12 @@
  * The forward trace (DESIGN.md "The job, in one picture"): projector pixel → ray → first hit on the
  * mirror sphere (cap test) → reflection → dome sphere → direction from the content's eye → fisheye.
  */
-import { rayDomeExit } from './dome.js';
-import { directionToFisheye } from './fisheye.js';
+import { rayDomeExit } from './optics/dome.js';
+import { directionToFisheye } from './optics/fisheye.js';
 import { azAltFromDirection, type Vec3 } from './math.js';
-import { mirrorNormal, onCap, raySphereFirstHit, reflect } from './mirror.js';
-import { pixelToRay, projectorFrame, type ProjectorFrame } from './projector.js';
-import type { Rig } from './rig.js';
+import { mirrorNormal, onCap, raySphereFirstHit, reflect } from './optics/mirror.js';
+import { pixelToRay, projectorFrame, type ProjectorFrame } from './optics/projector.js';
+import type { Rig } from './rig/model.js';
 
 /** What a projector pixel's light does. Numeric codes are used in typed arrays. */
 export const HitKind = { MirrorMiss: 0, Dome: 1, BelowHorizon: 2 } as const;

@@ -7,19 +7,12 @@ import { readFileSync } from 'node:fs';
 import { fileURLToPath } from 'node:url';
 import { describe, expect, it } from 'vitest';
 import { parse } from 'yaml';
-import {
-  bakeMesh,
-  BAKE_DEFAULTS,
-  brightnessFactor,
-  domeAreaOnGrid,
-  quantile,
-  referenceArea,
-  rigFromDocument,
-  Tracer,
-  allocGridOutput,
-  type Rig,
-  type WarpMesh,
-} from '@skyfold/warp-core';
+import { bakeMesh, BAKE_DEFAULTS } from '../src/mesh/bake.js';
+import { brightnessFactor, domeAreaOnGrid, quantile, referenceArea } from '../src/mesh/field.js';
+import { rigFromDocument } from '../src/rig/document.js';
+import { Tracer, allocGridOutput } from '../src/trace.js';
+import { type Rig } from '../src/rig/model.js';
+import { type WarpMesh } from '../src/mesh/mesh.js';
 
 const DEMO_RIG = fileURLToPath(new URL('../../../fixtures/demo-rig.yaml', import.meta.url));
 const demoRig = (over: Record<string, unknown> = {}): Rig => {

@@ -5,37 +5,17 @@
  * honest, one bad reading is caught by the robust fit, and degenerate sets are named.
  */
 import { describe, expect, it } from 'vitest';
-import {
-  angleBetween,
-  azAltFromDirection,
-  choleskySolve,
-  cross,
-  DEG,
-  extendedPixelDirection,
-  fitRig,
-  levenbergMarquardt,
-  locateDirection,
-  locatePoint,
-  logMap,
-  measurementsFromDocument,
-  modelDistance,
-  normalize,
-  projectorFrame,
-  RAD,
-  RigError,
-  rigFromDocument,
-  symmetricEigen,
-  Tracer,
-  trilaterate,
-  trilaterateLeastSquares,
-  validateRigGeometry,
-  type FreeQuantity,
-  type MeasurementSet,
-  type Observation,
-  type PointRef,
-  type Rig,
-  type Vec3,
-} from '@skyfold/warp-core';
+import { angleBetween, azAltFromDirection, cross, DEG, normalize, RAD, type Vec3 } from '../src/math.js';
+import { choleskySolve, symmetricEigen } from '../src/calibrate/matrix.js';
+import { extendedPixelDirection, fitRig, logMap, modelDistance } from '../src/calibrate/fit.js';
+import { levenbergMarquardt } from '../src/calibrate/levenberg-marquardt.js';
+import { locateDirection } from '../src/locate.js';
+import { locatePoint, trilaterate, trilaterateLeastSquares } from '../src/calibrate/trilaterate.js';
+import { measurementsFromDocument, type FreeQuantity, type MeasurementSet, type Observation, type PointRef } from '../src/calibrate/measurements.js';
+import { projectorFrame } from '../src/optics/projector.js';
+import { RigError, validateRigGeometry, type Rig } from '../src/rig/model.js';
+import { rigFromDocument } from '../src/rig/document.js';
+import { Tracer } from '../src/trace.js';
 
 /** The demo rig of `skyfold init` (packages/warp-cli/src/demo-rig.ts), written out here. */
 const DEMO_DOC = {

@@ -5,7 +5,8 @@
 import { describe, expect, it } from 'vitest';
 import fc from 'fast-check';
 import proj4 from 'proj4';
-import { DEG, directionFromAzAlt, directionToFisheye, fisheyeToDirection, fisheyeZenithAngle, type Vec3 } from '@skyfold/warp-core';
+import { DEG, directionFromAzAlt, type Vec3 } from '../src/math.js';
+import { directionToFisheye, fisheyeToDirection, fisheyeZenithAngle } from '../src/optics/fisheye.js';
 
 // proj4 `aeqd` on a unit sphere centred on the north pole: forward([lon, lat]) in degrees gives (x, y) in
 // radians of arc from the pole (proj4js, lib/projections/aeqd.js, the polar branch).

@@ -5,24 +5,12 @@ import { describe, expect, it } from 'vitest';
 import fc from 'fast-check';
 // @ts-expect-error three ships no type declarations in this workspace
 import { Ray, Sphere, Vector3 } from 'three';
-import {
-  cross,
-  dot,
-  insideFrame,
-  length,
-  normalize,
-  onCap,
-  raySphereFirstHit,
-  rayToPixel,
-  reflect,
-  RigError,
-  rigFromDocument,
-  sub,
-  Tracer,
-  type MirrorModel,
-  type Rig,
-  type Vec3,
-} from '@skyfold/warp-core';
+import { cross, dot, length, normalize, sub, type Vec3 } from '../src/math.js';
+import { insideFrame, rayToPixel } from '../src/optics/projector.js';
+import { onCap, raySphereFirstHit, reflect } from '../src/optics/mirror.js';
+import { RigError, type MirrorModel, type Rig } from '../src/rig/model.js';
+import { rigFromDocument } from '../src/rig/document.js';
+import { Tracer } from '../src/trace.js';
 
 const num = (min: number, max: number) => fc.double({ min, max, noNaN: true, noDefaultInfinity: true });
 const vec = (lo: number, hi: number) => fc.tuple(num(lo, hi), num(lo, hi), num(lo, hi));

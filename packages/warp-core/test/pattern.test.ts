@@ -5,30 +5,17 @@
  * zenith target on the projector pixel the inverse trace names for the zenith.
  */
 import { describe, expect, it } from 'vitest';
-import {
-  createRgbImage,
-  DEG,
-  directionFromAzAlt,
-  directionToFisheye,
-  domeMasterPixel,
-  drawDomePattern,
-  drawMarkerFrame,
-  drawText,
-  fillDisc,
-  FONT_CHARACTERS,
-  glyphCell,
-  GLYPH_HEIGHT,
-  GLYPH_WIDTH,
-  locateDirection,
-  PATTERN_COLORS,
-  pixelMapFromRig,
-  remap,
-  rigFromDocument,
-  strokeRing,
-  textSize,
-  Tracer,
-  type RgbImage,
-} from '@skyfold/warp-core';
+import { createRgbImage, fillDisc, strokeRing, type RgbImage } from '../src/pattern/raster.js';
+import { DEG, directionFromAzAlt } from '../src/math.js';
+import { directionToFisheye } from '../src/optics/fisheye.js';
+import { domeMasterPixel, drawDomePattern, PATTERN_COLORS } from '../src/pattern/dome-master.js';
+import { drawMarkerFrame } from '../src/pattern/markers.js';
+import { drawText, FONT_CHARACTERS, glyphCell, GLYPH_HEIGHT, GLYPH_WIDTH, textSize } from '../src/pattern/digit-font.js';
+import { locateDirection } from '../src/locate.js';
+import { pixelMapFromRig } from '../src/mesh/pixel-map.js';
+import { remap } from '../src/remap/remap.js';
+import { rigFromDocument } from '../src/rig/document.js';
+import { Tracer } from '../src/trace.js';
 
 const at = (img: RgbImage, i: number, j: number): [number, number, number] => {
   const k = 3 * (j * img.width + i);

@@ -1,6 +1,8 @@
 /** `planRig`: finds a known best placement and never proposes one that breaks a bound. */
 import { describe, expect, it } from 'vitest';
-import { deg, length, placementViolations, planRig, validateRigGeometry, type Rig } from '@skyfold/warp-core';
+import { deg, validateRigGeometry, type Rig } from '../src/rig/model.js';
+import { length } from '../src/math.js';
+import { placementViolations, planRig } from '../src/placement/plan.js';
 
 function rig(over: (r: Rig) => void = () => {}): Rig {
   const s = Math.SQRT1_2;

@@ -1,6 +1,8 @@
 import { readdirSync, readFileSync } from 'node:fs';
 import { describe, expect, it } from 'vitest';
-import { buildPyramid, createImageLike, remap, type ImageBuffer, type RemapMap } from '@skyfold/warp-core';
+import { buildPyramid } from '../src/remap/pyramid.js';
+import { createImageLike, remap } from '../src/remap/remap.js';
+import { type ImageBuffer, type RemapMap } from '../src/remap/types.js';
 // @ts-ignore -- a plain .mjs script without typings
 import { assemble, generated } from '../../../scripts/build-wasm.mjs';
 

@@ -1,14 +1,8 @@
 import { describe, expect, it } from 'vitest';
-import {
-  buildPyramid,
-  createImageLike,
-  linearToSrgb,
-  remap,
-  srgbToLinear,
-  type ImageBuffer,
-  type RemapFilter,
-  type RemapMap,
-} from '@skyfold/warp-core';
+import { buildPyramid } from '../src/remap/pyramid.js';
+import { createImageLike, remap } from '../src/remap/remap.js';
+import { linearToSrgb, srgbToLinear } from '../src/srgb.js';
+import { type ImageBuffer, type RemapFilter, type RemapMap } from '../src/remap/types.js';
 
 const FILTERS: RemapFilter[] = ['nearest', 'bilinear', 'area'];
 

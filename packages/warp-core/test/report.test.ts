@@ -1,27 +1,16 @@
 /**
  * The report's figures: coverage two independent ways, arcminutes per pixel against the paraxial
- * mirror equation, brightness, focus and the eye-height safety findings; the label font and colour map.
+ * mirror equation, brightness, focus and the eye-height safety findings.
  */
 import { describe, expect, it } from 'vitest';
-import {
-  analyzeRig,
-  ARCMIN_PER_RADIAN,
-  cellFields,
-  contentSolidAngle,
-  coverageFromDirections,
-  deg,
-  dusk,
-  hasLabelGlyph,
-  oklabLightness,
-  pixelResolution,
-  reflectedThrough,
-  sampleFrame,
-  STANDING_CAUTIONS,
-  Tracer,
-  validateRigGeometry,
-  type Rig,
-  type Vec3,
-} from '@skyfold/warp-core';
+import { analyzeRig } from '../src/analysis/analyze.js';
+import { ARCMIN_PER_RADIAN, pixelResolution } from '../src/analysis/resolution.js';
+import { cellFields, sampleFrame } from '../src/analysis/sample.js';
+import { contentSolidAngle, coverageFromDirections } from '../src/analysis/coverage.js';
+import { deg, validateRigGeometry, type Rig } from '../src/rig/model.js';
+import { reflectedThrough, STANDING_CAUTIONS } from '../src/analysis/safety.js';
+import { Tracer } from '../src/trace.js';
+import { type Vec3 } from '../src/math.js';
 
 /** The demo scenario (5 m dome, 60 cm hemisphere near the back wall, WUXGA projector). */
 function demoRig(over: (r: Rig) => void = () => {}): Rig {
@@ -153,20 +142,5 @@ describe('analyzeRig on the demo rig', () => {
     expect(g.floorKnown).toBe(false);
     expect(g.findings[0].text).toMatch(/dome\.floor/);
     expect(g.cautions.length).toBe(STANDING_CAUTIONS.length);
-  });
-});
-
-describe('raster: labels and colour', () => {
-  it('has a glyph for every letter, digit and the degree sign', () => {
-    for (const ch of 'ABCDEFGHIJKLMNOPQRSTUVWXYZabcdefghijklmnopqrstuvwxyz0123456789°%.,:-+/()') expect(hasLabelGlyph(ch), ch).toBe(true);
-  });
-
-  it('"dusk" rises in OKLab lightness from end to end', () => {
-    let prev = -1;
-    for (let k = 0; k <= 64; k++) {
-      const L = oklabLightness(dusk(k / 64));
-      expect(L).toBeGreaterThan(prev);
-      prev = L;
-    }
   });
 });

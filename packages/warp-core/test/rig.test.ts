@@ -4,30 +4,12 @@
  */
 import { describe, expect, it } from 'vitest';
 import fc from 'fast-check';
-import {
-  capFarthestDistance,
-  cross,
-  DEG,
-  didYouMean,
-  formatLength,
-  length,
-  LengthSyntaxError,
-  normalize,
-  parseLengthString,
-  RAD,
-  RIG_FIELDS,
-  RigError,
-  rigFromDocument,
-  rigToDocument,
-  rigWarnings,
-  sagittaRadius,
-  sub,
-  Tracer,
-  validateRigGeometry,
-  type LengthUnit,
-  type Rig,
-  type Vec3,
-} from '@skyfold/warp-core';
+import { capFarthestDistance, RigError, validateRigGeometry, type Rig } from '../src/rig/model.js';
+import { cross, DEG, length, normalize, RAD, sub, type Vec3 } from '../src/math.js';
+import { didYouMean, RIG_FIELDS, rigFromDocument, rigToDocument, sagittaRadius } from '../src/rig/document.js';
+import { formatLength, LengthSyntaxError, parseLengthString, type LengthUnit } from '../src/units.js';
+import { rigWarnings } from '../src/rig/warnings.js';
+import { Tracer } from '../src/trace.js';
 
 type Doc = Record<string, any>;
 

@@ -7,31 +7,14 @@ import { describe, expect, it } from 'vitest';
 import fc from 'fast-check';
 import { readFileSync } from 'node:fs';
 import { fileURLToPath } from 'node:url';
-import {
-  allocGridOutput,
-  angleBetween,
-  cross,
-  DEG,
-  directionFromAzAlt,
-  HitKind,
-  insideFrame,
-  length,
-  locateDirection,
-  METRES_PER_UNIT,
-  normalize,
-  onCap,
-  parseLengthString,
-  RAD,
-  RigError,
-  rigFromDocument,
-  rayToPixel,
-  sub,
-  Tracer,
-  type LengthUnit,
-  type Rig,
-  type TraceResult,
-  type Vec3,
-} from '@skyfold/warp-core';
+import { allocGridOutput, HitKind, Tracer, type TraceResult } from '../src/trace.js';
+import { angleBetween, cross, DEG, directionFromAzAlt, length, normalize, RAD, sub, type Vec3 } from '../src/math.js';
+import { insideFrame, rayToPixel } from '../src/optics/projector.js';
+import { locateDirection } from '../src/locate.js';
+import { METRES_PER_UNIT, parseLengthString, type LengthUnit } from '../src/units.js';
+import { onCap } from '../src/optics/mirror.js';
+import { RigError, type Rig } from '../src/rig/model.js';
+import { rigFromDocument } from '../src/rig/document.js';
 
 type Doc = Record<string, any>;
 

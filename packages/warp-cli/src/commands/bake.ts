@@ -3,7 +3,7 @@ import { mkdirSync, renameSync, writeFileSync } from 'node:fs';
 import { dirname, basename, join } from 'node:path';
 import { InvalidArgumentError, type Command } from 'commander';
 import { BAKE_DEFAULTS, bakeMesh, rigToDocument, type BakeOptions, type BakeResult } from '@skyfold/warp-core';
-import { loadRig } from '../document-file.js';
+import { loadRig } from '../io/document-file.js';
 import { UserError } from '../errors.js';
 import { encodeMesh, formatFromPath, MESH_FORMATS, type MeshFormat } from '../export/index.js';
 import { printJson } from '../format.js';

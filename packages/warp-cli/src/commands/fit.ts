@@ -22,7 +22,7 @@ import {
   type LengthUnit,
   type MeasurementSet,
 } from '@skyfold/warp-core';
-import { loadRig, parseDocumentText, readTextFile } from '../document-file.js';
+import { loadRig, parseDocumentText, readTextFile } from '../io/document-file.js';
 import { UserError } from '../errors.js';
 import { fixed, printJson, table } from '../format.js';
 import { warn } from '../messages.js';

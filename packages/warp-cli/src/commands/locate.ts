@@ -1,7 +1,7 @@
 /** `skyfold locate`: the inverse of probe — which projector pixel lights a dome direction. */
 import type { Command } from 'commander';
 import { DEG, locateDirection, Tracer } from '@skyfold/warp-core';
-import { loadRig } from '../document-file.js';
+import { loadRig } from '../io/document-file.js';
 import { fixed, printJson, table } from '../format.js';
 import { collect, parseNumberPair } from '../options.js';
 import { warn } from '../messages.js';

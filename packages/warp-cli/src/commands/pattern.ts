@@ -25,7 +25,7 @@ import {
   type RemapFilter,
   type Rig,
 } from '@skyfold/warp-core';
-import { loadRig } from '../document-file.js';
+import { loadRig } from '../io/document-file.js';
 import { UserError } from '../errors.js';
 import { fixed, printJson } from '../format.js';
 import { warn } from '../messages.js';

@@ -3,7 +3,7 @@ import { basename, dirname, extname, join } from 'node:path';
 import { Option, type Command } from 'commander';
 import { stringify } from 'yaml';
 import { formatLength, PLAN_DEFAULTS, PLAN_OBJECTIVES, planRig, RigError, rigToDocument, type PlanCandidate, type PlanObjective, type PlanResult } from '@skyfold/warp-core';
-import { loadRig } from '../document-file.js';
+import { loadRig } from '../io/document-file.js';
 import { UserError } from '../errors.js';
 import { printJson, table } from '../format.js';
 import { warn } from '../messages.js';

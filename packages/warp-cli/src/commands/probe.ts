@@ -1,7 +1,7 @@
 /** `skyfold probe`: traces projector pixels to the dome and the fisheye. */
 import type { Command } from 'commander';
 import { formatLength, RAD, Tracer } from '@skyfold/warp-core';
-import { loadRig } from '../document-file.js';
+import { loadRig } from '../io/document-file.js';
 import { fixed, printJson, table } from '../format.js';
 import { collect, parseNumberPair } from '../options.js';
 import { warn } from '../messages.js';

@@ -2,8 +2,11 @@
 import { join } from 'node:path';
 import type { Command } from 'commander';
 import sharp from 'sharp';
-import { analyzeRig, describeArc, formatLength, REPORT_DEFAULTS, reportHtml, reportPictures, type HtmlPicture, type RasterImage, type ReportFigures } from '@skyfold/warp-core';
-import { loadRig } from '../document-file.js';
+import { analyzeRig, describeArc, formatLength, REPORT_DEFAULTS, type ReportFigures } from '@skyfold/warp-core';
+import { reportHtml, type HtmlPicture } from '../pictures/report-page.js';
+import { reportPictures } from '../pictures/report-pictures.js';
+import type { RasterImage } from '../pictures/raster.js';
+import { loadRig } from '../io/document-file.js';
 import { UserError } from '../errors.js';
 import { printJson } from '../format.js';
 import { warn } from '../messages.js';

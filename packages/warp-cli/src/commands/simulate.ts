@@ -1,7 +1,7 @@
 /** `skyfold simulate`: what the audience would see of a warped frame, as a dome master. */
 import { Option, type Command } from 'commander';
 import { remap, simulationMap } from '@skyfold/warp-core';
-import { loadRig } from '../document-file.js';
+import { loadRig } from '../io/document-file.js';
 import { UserError } from '../errors.js';
 import { printJson } from '../format.js';
 import { warn } from '../messages.js';

@@ -7,12 +7,6 @@ import { readObj, writeObj } from './obj.js';
 import { readMeshPfm, writeMeshPfm } from './pfm.js';
 import { readMapPng, writeMapPng } from './png16.js';
 
-export * from './csv.js';
-export * from './glb.js';
-export * from './mpcdi.js';
-export * from './obj.js';
-export * from './pfm.js';
-export * from './png16.js';
 
 export type MeshFormat = 'glb' | 'obj' | 'pfm' | 'mpcdi' | 'png' | 'csv';
 

@@ -2,7 +2,7 @@
 import { createHash } from 'node:crypto';
 import { readFileSync } from 'node:fs';
 import { BAKE_DEFAULTS, pixelMapFromMesh, pixelMapFromRig, rigToDocument, type RemapMap, type SourceOrientation, type WarpMesh, type Rig } from '@skyfold/warp-core';
-import { loadRig } from '../document-file.js';
+import { loadRig } from '../io/document-file.js';
 import { UserError } from '../errors.js';
 import { readGlb } from '../export/glb.js';
 import { warn } from '../messages.js';

@@ -13,11 +13,11 @@
  * grazing (`extendedPixelDirection`): the residual stays continuous and keeps growing with the miss,
  * so the solver is steered back rather than thrown out or stranded.
  */
-import { rayDomeExit } from '../dome.js';
+import { rayDomeExit } from '../optics/dome.js';
 import { cross, directionFromAzAlt, azAltFromDirection, dot, length, normalize, sub, type ReadonlyVec3, type Vec3 } from '../math.js';
-import { onCap, raySphereFirstHit } from '../mirror.js';
-import { pixelToRay, projectorFrame, type ProjectorFrame } from '../projector.js';
-import { mirrorPole, RigError, validateRigGeometry, type Rig } from '../rig.js';
+import { onCap, raySphereFirstHit } from '../optics/mirror.js';
+import { pixelToRay, projectorFrame, type ProjectorFrame } from '../optics/projector.js';
+import { mirrorPole, RigError, validateRigGeometry, type Rig } from '../rig/model.js';
 import { levenbergMarquardt, numericJacobian } from './levenberg-marquardt.js';
 import { symmetricEigen } from './matrix.js';
 import { FREE_QUANTITIES, pointLabel, type DistanceMeasurement, type FreeQuantity, type MeasurementSet, type Observation, type PointRef } from './measurements.js';

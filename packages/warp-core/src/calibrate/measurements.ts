@@ -5,8 +5,8 @@
  * as strings with their own unit, angles in degrees, every error naming its dotted field.
  */
 import { DEG, wrapDegrees } from '../math.js';
-import { RigError } from '../rig.js';
-import { checkKnownFields, didYouMean, documentUnits, FieldReader, showValue } from '../rig-document.js';
+import { RigError } from '../rig/model.js';
+import { checkKnownFields, didYouMean, documentUnits, FieldReader, showValue } from '../rig/document.js';
 import { METRES_PER_UNIT, type LengthUnit } from '../units.js';
 
 /** A named point of the rig a tape can reach. */

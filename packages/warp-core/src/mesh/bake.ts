@@ -4,7 +4,7 @@
  * its cells puts content from where the exact trace puts it.
  */
 import { DEG } from '../math.js';
-import type { Rig } from '../rig.js';
+import type { Rig } from '../rig/model.js';
 import { allocGridOutput, HitKind, Tracer } from '../trace.js';
 import { brightnessFactor, contentVisible, domeAreaOnGrid, featherMask, fillUnlit, quantile, referenceArea } from './field.js';
 import { createMesh, type WarpMesh } from './mesh.js';

@@ -3,7 +3,7 @@
  * brightness factor and mask, as a RemapMap in dome-master pixel units.
  */
 import { DEG } from '../math.js';
-import type { Rig } from '../rig.js';
+import type { Rig } from '../rig/model.js';
 import type { RemapMap } from '../remap/types.js';
 import { HitKind, Tracer } from '../trace.js';
 import { BAKE_DEFAULTS, interpolateCell, type BakeOptions } from './bake.js';

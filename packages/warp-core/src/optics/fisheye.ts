@@ -2,7 +2,7 @@
  * The angular (equidistant) fisheye of dome masters (DESIGN.md "Fisheye convention"): radius from the
  * centre ∝ angle from the zenith; front of the dome at the bottom of the frame, viewer's right on the right.
  */
-import type { ReadonlyVec3, Vec3 } from './math.js';
+import type { ReadonlyVec3, Vec3 } from '../math.js';
 
 /**
  * Unit direction → normalized fisheye (u, v) for a content field of view `fov` (radians):

@@ -3,22 +3,11 @@
  * master's orientation, the projector frame coloured by what each pixel's light does, a side view of
  * the set-up with the eye-height bands, and a plan view of where light meets eye height.
  */
-import { fisheyeToDirection } from '../fisheye.js';
-import { domePointFromEye, locateDirection } from '../locate.js';
-import { azAltFromDirection, DEG, RAD, type Vec3 } from '../math.js';
-import { pixelToRay } from '../projector.js';
-import { allocGridOutput, HitKind } from '../trace.js';
-import { formatLength } from '../units.js';
-import { dusk, oklchToSrgb8, PALETTE } from '../raster/colormap.js';
-import { drawLabel, labelWidth } from '../raster/font.js';
-import { createImage, drawLine, drawPolyline, fillCircle, fillPolygon, fillRect, setPixel, strokeCircle, strokeRect, type RasterImage, type Rgb8 } from '../raster/image.js';
-import { drawScaleBar, niceTicks } from '../raster/scale-bar.js';
-import type { RigAnalysis } from './analyze.js';
-import { bodyCorners, segmentHitsBody } from './body.js';
-import { landing } from './light.js';
-import { EYE_BANDS } from './safety.js';
-import { Fate, fateOf } from './sample.js';
-import { Sorted } from './stats.js';
+import { allocGridOutput, azAltFromDirection, bodyCorners, DEG, domePointFromEye, EYE_BANDS, Fate, fateOf, fisheyeToDirection, formatLength, HitKind, landing, locateDirection, pixelToRay, RAD, type RigAnalysis, segmentHitsBody, Sorted, type Vec3 } from '@skyfold/warp-core';
+import { dusk, oklchToSrgb8, PALETTE } from './colormap.js';
+import { drawLabel, labelWidth } from './label-font.js';
+import { createImage, drawLine, drawPolyline, fillCircle, fillPolygon, fillRect, setPixel, strokeCircle, strokeRect, type RasterImage, type Rgb8 } from './raster.js';
+import { drawScaleBar, niceTicks } from './scale-bar.js';
 
 const INK = PALETTE.ink;
 const FAINT = PALETTE.faint;

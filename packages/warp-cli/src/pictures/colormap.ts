@@ -5,8 +5,8 @@
  * equal steps in lightness and the map stays ordered in grey scale. Chroma is reduced where sRGB
  * cannot show it, which never changes the lightness.
  */
-import { linearToSrgb } from '../srgb.js';
-import type { Rgb8 } from './image.js';
+import { linearToSrgb } from '@skyfold/warp-core';
+import type { Rgb8 } from './raster.js';
 
 /** OKLab → linear sRGB (Ottosson 2020, the matrices as published on 2021-01-25). */
 export function oklabToLinearSrgb(L: number, a: number, b: number): [number, number, number] {

@@ -3,9 +3,7 @@
  * (given as data: URIs by the caller), with inline styles and no scripts or outside resources, so it
  * opens in any browser with nothing else installed.
  */
-import { formatLength, type LengthUnit } from '../units.js';
-import type { ReportFigures } from './analyze.js';
-import { describeArc } from './safety.js';
+import { describeArc, formatLength, type LengthUnit, type ReportFigures } from '@skyfold/warp-core';
 
 export interface HtmlPicture {
   /** A data: URI (or a relative path). */

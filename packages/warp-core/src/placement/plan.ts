@@ -8,14 +8,14 @@
  */
 import { DEG, length, normalize, RAD, sub, type Vec3 } from '../math.js';
 import { seededRandom } from '../random.js';
-import { RigError, validateRigGeometry, type Rig } from '../rig.js';
-import { projectorFrame } from '../projector.js';
+import { RigError, validateRigGeometry, type Rig } from '../rig/model.js';
+import { projectorFrame } from '../optics/projector.js';
 import { Tracer } from '../trace.js';
-import { bodyCorners } from './body.js';
-import { contentSolidAngle } from './coverage.js';
-import { ARCMIN_PER_RADIAN, cellArcmin } from './resolution.js';
-import { cellFields, Fate, sampleFrame } from './sample.js';
-import { roundFigure as r, Sorted } from './stats.js';
+import { bodyCorners } from '../analysis/body.js';
+import { contentSolidAngle } from '../analysis/coverage.js';
+import { ARCMIN_PER_RADIAN, cellArcmin } from '../analysis/resolution.js';
+import { cellFields, Fate, sampleFrame } from '../analysis/sample.js';
+import { roundFigure as r, Sorted } from '../analysis/stats.js';
 
 export type PlanObjective = 'coverage' | 'sharpness' | 'balanced';
 export const PLAN_OBJECTIVES: readonly PlanObjective[] = ['coverage', 'sharpness', 'balanced'];

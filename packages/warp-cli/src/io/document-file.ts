@@ -2,7 +2,7 @@
 import { readFileSync } from 'node:fs';
 import { parseDocument } from 'yaml';
 import { RigError, rigFromDocument, rigWarnings, type Rig } from '@skyfold/warp-core';
-import { UserError } from './errors.js';
+import { UserError } from '../errors.js';
 
 function lineCol(text: string, pos: number): [number, number] {
   let line = 1;

@@ -2,8 +2,8 @@
  * The rig: dome, projector, mirror and content, in metres and radians (DESIGN.md "Frames and units").
  * Rig files speak degrees and the file's units; `rig-document.ts` converts at that boundary.
  */
-import { cross, DEG, dot, length, normalize, safeAcos, scale, sub, type ReadonlyVec3, type Vec3 } from './math.js';
-import { formatLength, type LengthUnit } from './units.js';
+import { cross, DEG, dot, length, normalize, safeAcos, scale, sub, type ReadonlyVec3, type Vec3 } from '../math.js';
+import { formatLength, type LengthUnit } from '../units.js';
 
 export interface DomeModel {
   /** Radius of the dome sphere, centred on the world origin. */

@@ -6,8 +6,8 @@
  */
 import { azAltFromDirection, RAD, type ReadonlyVec3, type Vec3 } from '../math.js';
 import { reflectionPoint } from '../locate.js';
-import { onCap } from '../mirror.js';
-import { insideFrame, rayToPixel } from '../projector.js';
+import { onCap } from '../optics/mirror.js';
+import { insideFrame, rayToPixel } from '../optics/projector.js';
 import { segmentHitsBody } from './body.js';
 import { landing } from './light.js';
 import { formatLength } from '../units.js';

@@ -1,6 +1,6 @@
 /** The convex spherical mirror (DESIGN.md "Mirror model"): first hit, cap test, reflection. */
-import type { ReadonlyVec3, Vec3 } from './math.js';
-import type { MirrorModel } from './rig.js';
+import type { ReadonlyVec3, Vec3 } from '../math.js';
+import type { MirrorModel } from '../rig/model.js';
 
 /**
  * Distance along the ray o + t·d (d unit length) to its first intersection with the sphere, or −1 when

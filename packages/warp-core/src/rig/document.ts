@@ -2,9 +2,9 @@
  * Rig documents (the parsed YAML/JSON of a rig file) → the Rig model, validating at the boundary:
  * every error names the dotted field, what was expected and what came.
  */
-import { DEG, length, normalize, RAD, type Vec3 } from './math.js';
-import { RigError, validateRigGeometry, type ProjectorBody, type Rig } from './rig.js';
-import { canonicalUnit, fromMetres, isLengthUnit, LENGTH_UNITS, LengthSyntaxError, METRES_PER_UNIT, parseLengthString, type LengthUnit } from './units.js';
+import { DEG, length, normalize, RAD, type Vec3 } from '../math.js';
+import { RigError, validateRigGeometry, type ProjectorBody, type Rig } from './model.js';
+import { canonicalUnit, fromMetres, isLengthUnit, LENGTH_UNITS, LengthSyntaxError, METRES_PER_UNIT, parseLengthString, type LengthUnit } from '../units.js';
 
 type Doc = Record<string, unknown>;
 

@@ -2,7 +2,7 @@
  * `analyzeRig`: every figure of the report from one coarse trace of the frame (a few hundred thousand
  * rays at most) and one pass of dome directions through the inverse.
  */
-import type { Rig } from '../rig.js';
+import type { Rig } from '../rig/model.js';
 import { Tracer } from '../trace.js';
 import { brightnessFigures, type BrightnessFigures } from './brightness.js';
 import { contentSolidAngle, coverageFromDirections, type AzimuthCoverage, type DirectionCoverageOptions } from './coverage.js';

@@ -1,6 +1,6 @@
 /** A vertical colour scale with ticks and a title, drawn beside a map. */
-import { drawLabel } from './font.js';
-import { drawLine, fillRect, strokeRect, type RasterImage, type Rgb8 } from './image.js';
+import { drawLabel } from './label-font.js';
+import { drawLine, fillRect, strokeRect, type RasterImage, type Rgb8 } from './raster.js';
 
 export interface ScaleBarOptions {
   x: number;

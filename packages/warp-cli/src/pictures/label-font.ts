@@ -3,7 +3,7 @@
  * (two rows of descender for g, j, p, q, y, and the comma), drawn at any whole-number scale.
  * Designed for this project; '#' marks a lit dot.
  */
-import { blendOver, fillRect, type RasterImage, type Rgb8 } from './image.js';
+import { blendOver, fillRect, type RasterImage, type Rgb8 } from './raster.js';
 
 const GLYPH_ROWS: Readonly<Record<string, readonly string[]>> = {
   ' ': [],

@@ -1,8 +1,8 @@
 /** Warnings for rigs that work but are probably not what was meant. */
-import { allocGridOutput, HitKind, Tracer } from './trace.js';
-import { rayToPixel, insideFrame } from './projector.js';
-import { sub } from './math.js';
-import type { Rig } from './rig.js';
+import { allocGridOutput, HitKind, Tracer } from '../trace.js';
+import { rayToPixel, insideFrame } from '../optics/projector.js';
+import { sub } from '../math.js';
+import type { Rig } from './model.js';
 
 /** Human-readable warnings (empty when the rig looks sound). */
 export function rigWarnings(rig: Rig): string[] {

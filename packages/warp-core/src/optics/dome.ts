@@ -1,5 +1,5 @@
 /** The dome sphere about the origin (DESIGN.md "Dome model"). */
-import type { ReadonlyVec3 } from './math.js';
+import type { ReadonlyVec3 } from '../math.js';
 
 /**
  * Distance along o + t·d (d unit) to the sphere of radius R about the origin, going forward from a

@@ -3,8 +3,8 @@
  * reflected light pass through it? The lens sits at the centre of the box's front face.
  */
 import type { ReadonlyVec3 } from '../math.js';
-import type { ProjectorFrame } from '../projector.js';
-import type { ProjectorBody } from '../rig.js';
+import type { ProjectorFrame } from '../optics/projector.js';
+import type { ProjectorBody } from '../rig/model.js';
 
 /**
  * True when the segment a → b passes through the body (slab test in the projector's axes: right,

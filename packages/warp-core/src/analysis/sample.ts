@@ -4,7 +4,7 @@
  * disagree are split (midpoint subdivision) so the lit region's edge — the mirror's silhouette, the
  * cap's rim, the horizon, the content's edge — is followed to a fraction of a pixel.
  */
-import { pixelToRay } from '../projector.js';
+import { pixelToRay } from '../optics/projector.js';
 import type { Vec3 } from '../math.js';
 import { allocGridOutput, HitKind, Tracer } from '../trace.js';
 import { segmentHitsBody } from './body.js';

@@ -1,6 +1,6 @@
 /** Pinhole projector with lens shift (DESIGN.md "Projector model"): pixel → ray and its inverse. */
-import type { Vec3, ReadonlyVec3 } from './math.js';
-import { projectorBasis, type ProjectorBasis, type ProjectorModel } from './rig.js';
+import type { Vec3, ReadonlyVec3 } from '../math.js';
+import { projectorBasis, type ProjectorBasis, type ProjectorModel } from '../rig/model.js';
 
 /** Precomputed constants for mapping pixels of one projector. */
 export interface ProjectorFrame extends ProjectorBasis {
