@@ -1,6 +1,6 @@
 /**
  * The forward trace and its inverse: the worked vectors (computed from DESIGN.md independently of the
- * code, fixtures/vectors/, see ../shared/vectors/README.md), units, the grid kernel, projector
+ * code, fixtures/vectors/, see fixtures/vectors/README.md), units, the grid kernel, projector
  * conventions, and locate ∘ probe round trips.
  */
 import { describe, expect, it } from 'vitest';
