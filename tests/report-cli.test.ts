@@ -59,7 +59,9 @@ describe('skyfold report', () => {
     expect(html).not.toMatch(/(src|href)="(https?:)?\/\//);
     expect(html).not.toMatch(/<script/);
     expect(html).toMatch(/Never look into the beam/);
-    expect((html.match(/<img src="data:image\/png;base64,/g) ?? []).length).toBe(5);
+    expect((html.match(/<figure>/g) ?? []).length).toBe(5);
+    const pictures = (html.match(/<img src="data:image\/png;base64,/g) ?? []).length + (html.match(/<svg class="picture"/g) ?? []).length;
+    expect(pictures).toBe(5);
   });
 
   it('refuses a missing output folder option and a bad rig with exit 2 and one line', async () => {
@@ -89,7 +91,24 @@ describe.skipIf(!HAVE_CHROMIUM)('the report page in headless Chromium', () => {
       });
       page.on('pageerror', (e) => errors.push(e.message));
       await page.goto(pathToFileURL(join(dir, 'out', 'report.html')).href, { waitUntil: 'load' });
-      const widths = await page.$$eval('img', (imgs) => imgs.map((i) => (i as HTMLImageElement).complete && (i as HTMLImageElement).naturalWidth));
+      // each figure's picture is shown: a loaded <img>, or an inline SVG laid out with its embedded rasters decoded
+      const widths = await page.$$eval('figure', (figs) =>
+        Promise.all(
+          figs.map(async (f) => {
+            const img = f.querySelector('img');
+            if (img) return img.complete && img.naturalWidth;
+            const svg = f.querySelector('svg');
+            if (!svg) return 0;
+            for (const im of svg.querySelectorAll('image')) {
+              const i = new Image();
+              i.src = im.getAttribute('href') ?? '';
+              await i.decode();
+              if (!i.naturalWidth) return 0;
+            }
+            return svg.getBoundingClientRect().width;
+          }),
+        ),
+      );
       expect(widths).toHaveLength(5);
       for (const w of widths) expect(w).toBeGreaterThan(0);
       expect(await page.title()).toMatch(/skyfold report/);

@@ -6,6 +6,8 @@ import { analyzeRig, describeArc, formatLength, REPORT_DEFAULTS, type ReportFigu
 import { reportHtml, type HtmlPicture } from '../pictures/report-page.js';
 import { reportPictures } from '../pictures/report-pictures.js';
 import type { RasterImage } from '../pictures/raster.js';
+import { svgToPng } from '../pictures/render.js';
+import type { Picture } from '../pictures/svg.js';
 import { loadRig } from '../io/document-file.js';
 import { UserError } from '../errors.js';
 import { printJson } from '../format.js';
@@ -53,8 +55,8 @@ export function registerReport(program: Command): void {
       warnings.forEach(warn);
       if (opts.rays < 1000 || opts.rays > 2_000_000) throw new UserError(`--rays: expected a number from 1000 to 2000000, got ${opts.rays}`);
       const analysis = analyzeRig(rig, { vertices: opts.rays });
-      const pics = reportPictures(analysis);
-      const items: [string, RasterImage | null, string, string][] = [
+      const pics = await reportPictures(analysis);
+      const items: [string, RasterImage | Picture | null, string, string][] = [
         ['side-view.png', pics.side, 'Side view of the set-up', 'The dome, the floor and the eye-height bands, the mirror (its reflective cap drawn thick), the projector, and rays down the middle of the frame. Where the beam between lens and mirror runs at eye height it is drawn red.'],
         ['safety-plan.png', pics.plan, 'Plan view of where light meets eye height', 'For each eye-height band, seen from above: red where the beam itself crosses it, amber where the reflected picture does.'],
         ['frame.png', pics.frame, 'What each projector pixel lights', 'The projector frame as the projector shows it, coloured by where each pixel’s light goes, with altitude on the dome every 15°.'],
@@ -66,11 +68,12 @@ export function registerReport(program: Command): void {
       try {
         for (const [name, img, alt, caption] of items) {
           if (!img) continue;
-          const png = await encodePng(img);
+          const svg = 'svg' in img ? img.svg : undefined;
+          const png = svg === undefined ? await encodePng(img as RasterImage) : await svgToPng(svg);
           const path = join(opts.output, name);
           writeFileAtomic(path, png);
           files.push(path);
-          htmlPics.push({ src: `data:image/png;base64,${png.toString('base64')}`, alt, caption, width: img.width, height: img.height });
+          htmlPics.push({ src: svg === undefined ? `data:image/png;base64,${png.toString('base64')}` : name, svg, alt, caption, width: img.width, height: img.height });
         }
         const jsonPath = join(opts.output, 'report.json');
         writeFileAtomic(jsonPath, JSON.stringify(analysis.figures, null, 2) + '\n');

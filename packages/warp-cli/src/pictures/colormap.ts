@@ -6,7 +6,14 @@
  * cannot show it, which never changes the lightness.
  */
 import { linearToSrgb } from '@skyfold/warp-core';
-import type { Rgb8 } from './raster.js';
+
+/** An 8-bit sRGB colour. */
+export type Rgb8 = readonly [number, number, number];
+
+/** The colour as CSS/SVG writes it: #rrggbb. */
+export function css(c: Rgb8): string {
+  return '#' + c.map((v) => Math.round(Math.min(255, Math.max(0, v))).toString(16).padStart(2, '0')).join('');
+}
 
 /** OKLab → linear sRGB (Ottosson 2020, the matrices as published on 2021-01-25). */
 export function oklabToLinearSrgb(L: number, a: number, b: number): [number, number, number] {

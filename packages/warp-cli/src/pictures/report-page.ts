@@ -6,8 +6,10 @@
 import { describeArc, formatLength, type LengthUnit, type ReportFigures } from '@skyfold/warp-core';
 
 export interface HtmlPicture {
-  /** A data: URI (or a relative path). */
+  /** A data: URI, or the PNG file's path relative to the page. */
   src: string;
+  /** The picture as an SVG document, inlined in the page (then `src` is only linked). */
+  svg?: string;
   alt: string;
   caption: string;
   width: number;
@@ -39,7 +41,11 @@ export function reportHtml(f: ReportFigures, pictures: readonly HtmlPicture[], m
   const findings = f.safety.findings.map((x) => `<li class="${x.level}"><strong>${x.level}</strong> ${e(x.text)}</li>`).join('\n');
   const cautions = f.safety.cautions.map((c) => `<li>${e(c)}</li>`).join('\n');
   const figs = pictures
-    .map((p) => `<figure><img src="${e(p.src)}" alt="${e(p.alt)}" width="${p.width}" height="${p.height}"><figcaption>${e(p.caption)}</figcaption></figure>`)
+    .map((p) =>
+      p.svg === undefined
+        ? `<figure><img src="${e(p.src)}" alt="${e(p.alt)}" width="${p.width}" height="${p.height}"><figcaption>${e(p.caption)}</figcaption></figure>`
+        : `<figure>${p.svg.replace(/^<svg /, '<svg class="picture" ')}<figcaption>${e(p.caption)} <a href="${e(p.src)}">PNG</a></figcaption></figure>`,
+    )
     .join('\n');
   const spillPart = (name: string, s: ReportFigures['spill']['pastMirror']) =>
     row(name, pct(s.share), s.azimuths ? `lands ${describeArc(s.azimuths)}; on the dome ${pct(s.onDome)}, wall ${pct(s.onWall)}, floor ${pct(s.onFloor)} of the frame` : 'none');
@@ -72,7 +78,7 @@ ul.findings li.caution { border-left-color: var(--caution); }
 ul.findings strong { text-transform: uppercase; font-size: 12px; letter-spacing: .05em; margin-right: 6px; }
 li.danger strong { color: var(--danger); } li.caution strong { color: var(--caution); } li.note strong { color: var(--note); }
 figure { margin: 18px 0; background: #fff; border: 1px solid var(--line); border-radius: 8px; padding: 10px; }
-figure img { max-width: 100%; height: auto; display: block; margin: 0 auto; }
+figure img, figure svg.picture { max-width: 100%; height: auto; display: block; margin: 0 auto; }
 figcaption { color: var(--faint); font-size: 13px; margin-top: 6px; }
 footer { color: var(--faint); font-size: 13px; margin-top: 40px; }
 </style>

@@ -3,165 +3,17 @@
  * master's orientation, the projector frame coloured by what each pixel's light does, a side view of
  * the set-up with the eye-height bands, and a plan view of where light meets eye height.
  */
-import { allocGridOutput, azAltFromDirection, bodyCorners, DEG, domePointFromEye, EYE_BANDS, Fate, fateOf, fisheyeToDirection, formatLength, HitKind, landing, locateDirection, pixelToRay, RAD, type RigAnalysis, segmentHitsBody, Sorted, type Vec3 } from '@skyfold/warp-core';
-import { dusk, oklchToSrgb8, PALETTE } from './colormap.js';
+import { allocGridOutput, bodyCorners, DEG, EYE_BANDS, Fate, fateOf, formatLength, HitKind, landing, pixelToRay, RAD, type RigAnalysis, Sorted, type Vec3 } from '@skyfold/warp-core';
+import { drawFisheyeMap, fisheyeLookup } from './fisheye-map.js';
+import type { Picture } from './svg.js';
+import { oklchToSrgb8, PALETTE, type Rgb8 } from './colormap.js';
 import { drawLabel, labelWidth } from './label-font.js';
-import { createImage, drawLine, drawPolyline, fillCircle, fillPolygon, fillRect, setPixel, strokeCircle, strokeRect, type RasterImage, type Rgb8 } from './raster.js';
-import { drawScaleBar, niceTicks } from './scale-bar.js';
+import { createImage, drawLine, drawPolyline, fillCircle, fillPolygon, fillRect, setPixel, strokeCircle, strokeRect, type RasterImage } from './raster.js';
+import { niceTicks } from './scales.js';
 
 const INK = PALETTE.ink;
 const FAINT = PALETTE.faint;
 const PAPER = PALETTE.paper;
-
-/** Which report cell lights each pixel of a size × size fisheye picture: ≥ 0 a cell, −1 unlit dome, −2 outside the content, −3 below the springline. */
-export interface FisheyeLookup {
-  size: number;
-  cell: Int32Array;
-}
-
-export function fisheyeLookup(a: RigAnalysis, size: number): FisheyeLookup {
-  const s = a.sample;
-  const tracer = s.tracer;
-  const rig = tracer.rig;
-  const body = rig.projector.body;
-  const cell = new Int32Array(size * size);
-  const w: Vec3 = [0, 0, 0];
-  const nc = s.cols - 1;
-  for (let j = 0; j < size; j++) {
-    for (let i = 0; i < size; i++) {
-      const k = j * size + i;
-      const u = (i + 0.5) / size;
-      const v = (j + 0.5) / size;
-      if ((u - 0.5) ** 2 + (v - 0.5) ** 2 > 0.25) {
-        cell[k] = -2;
-        continue;
-      }
-      fisheyeToDirection(w, u, v, rig.content.fov);
-      if (domePointFromEye(rig.content.eye, w, rig.dome.radius)[2] < 0) {
-        cell[k] = -3;
-        continue;
-      }
-      const [az, alt] = azAltFromDirection(w);
-      const hit = locateDirection(tracer, az, alt, 1e-7);
-      if (hit.pixel === null || (body && segmentHitsBody(body, tracer.frame, hit.mirrorPoint, hit.domePoint))) {
-        cell[k] = -1;
-        continue;
-      }
-      const ci = Math.min(nc - 1, Math.max(0, Math.floor(hit.pixel[0] / s.cellW)));
-      const cj = Math.min(s.rows - 2, Math.max(0, Math.floor(hit.pixel[1] / s.cellH)));
-      cell[k] = cj * nc + ci;
-    }
-  }
-  return { size, cell };
-}
-
-/** A cell's value, or its nearest finite neighbour's (edge cells are not whole). */
-function cellValue(values: Float64Array, c: number, nc: number, nr: number): number {
-  if (Number.isFinite(values[c])) return values[c];
-  const ci = c % nc;
-  const cj = Math.floor(c / nc);
-  for (let rad = 1; rad <= 3; rad++)
-    for (let dj = -rad; dj <= rad; dj++)
-      for (let di = -rad; di <= rad; di++) {
-        const i = ci + di;
-        const j = cj + dj;
-        if (i < 0 || j < 0 || i >= nc || j >= nr) continue;
-        const v = values[j * nc + i];
-        if (Number.isFinite(v)) return v;
-      }
-  return Number.NaN;
-}
-
-export interface FisheyeMapOptions {
-  title: string;
-  subtitle: string;
-  scaleTitle: string;
-  /** Value → t ∈ [0, 1] on the colour map; values outside are clamped. */
-  min: number;
-  max: number;
-  format: (v: number) => string;
-  /** Reverse the map so that low values are light. */
-  reverse?: boolean;
-}
-
-/** A fisheye map of a per-cell field in the dome master's orientation, with a colour scale and labels. */
-export function drawFisheyeMap(a: RigAnalysis, lookup: FisheyeLookup, values: Float64Array, o: FisheyeMapOptions): RasterImage {
-  const N = lookup.size;
-  const img = createImage(N + 340, N + 150, PAPER);
-  const ox = 100;
-  const oy = 90;
-  const nc = a.sample.cols - 1;
-  const nr = a.sample.rows - 1;
-  const colour = (v: number) => {
-    const t = (v - o.min) / (o.max - o.min);
-    return dusk(o.reverse ? 1 - t : t);
-  };
-  for (let j = 0; j < N; j++)
-    for (let i = 0; i < N; i++) {
-      const c = lookup.cell[j * N + i];
-      if (c === -2) continue;
-      let col: Rgb8 = PALETTE.unlit;
-      if (c === -3) col = [236, 232, 224];
-      else if (c >= 0) {
-        const v = cellValue(values, c, nc, nr);
-        if (Number.isFinite(v)) col = colour(v);
-      }
-      setPixel(img, ox + i, oy + j, col);
-    }
-  // hatch the unlit dome so a gap reads as a gap, not as a colour
-  for (let j = 0; j < N; j++)
-    for (let i = 0; i < N; i++) if (lookup.cell[j * N + i] === -1 && (i + j) % 8 === 0) setPixel(img, ox + i, oy + j, [176, 180, 188]);
-  drawDomeGrid(img, ox + N / 2, oy + N / 2, N / 2, a.sample.tracer.rig.content.fov);
-  drawLabel(img, o.title, 24, 22, INK, { scale: 2 });
-  drawLabel(img, o.subtitle, 24, 52, FAINT);
-  drawScaleBar(img, {
-    x: ox + N + 100,
-    y: oy + 30,
-    width: 22,
-    height: N - 60,
-    min: o.min,
-    max: o.max,
-    colour: (t) => dusk(o.reverse ? 1 - t : t),
-    ticks: niceTicks(o.min, o.max, 6),
-    format: o.format,
-    title: o.scaleTitle,
-    ink: INK,
-  });
-  const ly = oy + N + 34;
-  fillRect(img, 24, ly, 14, 14, PALETTE.unlit);
-  for (let q = 0; q < 14; q++) setPixel(img, 24 + q, ly + 13 - q, [176, 180, 188]);
-  strokeRect(img, 24, ly, 14, 14, FAINT);
-  drawLabel(img, 'not lit', 46, ly + 4, INK);
-  drawLabel(img, 'Seen from inside, dome master orientation: front (azimuth 0°) at the bottom, right at the right.', 24, ly + 30, FAINT);
-  return img;
-}
-
-/** Altitude rings every 30°, azimuth spokes every 45° with labels, on a fisheye disc. */
-function drawDomeGrid(img: RasterImage, cx: number, cy: number, R: number, fov: number): void {
-  const rho = (alt: number) => (R * (90 - alt) * DEG) / (fov / 2);
-  for (const alt of [0, 30, 60]) {
-    const rr = rho(alt);
-    if (rr > R + 0.5) continue;
-    strokeCircle(img, cx, cy, rr, [255, 255, 255], 2.5, 0.55);
-    strokeCircle(img, cx, cy, rr, INK, 1, 0.6, 0, 2 * Math.PI, alt === 0 ? undefined : [6, 4]);
-  }
-  strokeCircle(img, cx, cy, R, INK, 1.5);
-  for (let az = 0; az < 360; az += 45) {
-    const sx = Math.sin(az * DEG);
-    const sy = Math.cos(az * DEG);
-    drawLine(img, cx + sx * rho(85), cy + sy * rho(85), cx + sx * R, cy + sy * R, INK, 1, 0.35, [3, 4]);
-    const name = az === 0 ? '0° front' : az === 90 ? '90° right' : az === 180 ? '180° back' : az === 270 ? '270° left' : `${az}°`;
-    const lx = cx + sx * (R + 16);
-    const ly = cy + sy * (R + 14);
-    drawLabel(img, name, lx, ly, INK, { align: Math.abs(sx) < 0.2 ? 'center' : sx > 0 ? 'left' : 'right', baseline: 'middle' });
-  }
-  for (const alt of [30, 60]) {
-    const rr = rho(alt);
-    drawLabel(img, `${alt}°`, cx + rr * Math.SQRT1_2 + 3, cy - rr * Math.SQRT1_2 - 3, INK, { halo: [255, 255, 255], baseline: 'bottom' });
-  }
-  fillCircle(img, cx, cy, 2.5, INK);
-  drawLabel(img, 'zenith', cx + 5, cy + 4, INK, { halo: [255, 255, 255] });
-}
 
 const FATE_COLOURS: Record<number, Rgb8> = {
   [Fate.MirrorMiss]: PALETTE.mirrorMiss,
@@ -501,18 +353,18 @@ export function relativeBrightness(a: RigAnalysis): Float64Array {
 }
 
 export interface ReportPictures {
-  resolution: RasterImage;
-  brightness: RasterImage;
+  resolution: Picture;
+  brightness: Picture;
   frame: RasterImage;
   side: RasterImage;
   plan: RasterImage | null;
 }
 
 /** All the report's pictures; `fisheyeSize` is the fisheye disc's diameter in pixels. */
-export function reportPictures(a: RigAnalysis, fisheyeSize = 420): ReportPictures {
+export async function reportPictures(a: RigAnalysis, fisheyeSize = 420): Promise<ReportPictures> {
   const lookup = fisheyeLookup(a, fisheyeSize);
   const rs = resolutionScale(a.arcmin);
-  const resolution = drawFisheyeMap(a, lookup, a.arcmin, {
+  const resolution = await drawFisheyeMap(a, lookup, a.arcmin, {
     title: 'Resolution on the dome',
     subtitle: 'Arcminutes per projector pixel, seen from the eye point. Lighter is sharper.',
     scaleTitle: 'arcmin/px',
@@ -520,14 +372,14 @@ export function reportPictures(a: RigAnalysis, fisheyeSize = 420): ReportPicture
     max: rs.max,
     format: (v) => (Number.isInteger(v) ? String(v) : v.toFixed(1)),
     reverse: true,
-  });
-  const brightness = drawFisheyeMap(a, lookup, relativeBrightness(a), {
+  }, 'resolution');
+  const brightness = await drawFisheyeMap(a, lookup, relativeBrightness(a), {
     title: 'Brightness before compensation',
     subtitle: 'Relative brightness of the lit dome, 1 = brightest. The mesh evens it out by dimming.',
     scaleTitle: 'relative',
     min: 0,
     max: 1,
     format: (v) => v.toFixed(1),
-  });
+  }, 'brightness');
   return { resolution, brightness, frame: drawFrameMap(a), side: drawSideView(a), plan: drawSafetyPlan(a) };
 }
