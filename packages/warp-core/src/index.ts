@@ -8,12 +8,15 @@ export { LENGTH_UNITS, formatLength, fromMetres, isLengthUnit, parseLengthString
 export { linearToSrgb, srgbToLinear } from './srgb.js';
 
 export { RigError, validateRigGeometry, type ContentModel, type DomeModel, type MirrorModel, type ProjectorBody, type ProjectorModel, type Rig } from './rig/model.js';
-export { rigFromDocument, rigToDocument } from './rig/document.js';
+export { rigFromDocument, rigToDocument, type RigDocumentOptions } from './rig/document.js';
 export { rigWarnings } from './rig/warnings.js';
 
 export { pixelToRay, rayToPixel, projectorFrame, type ProjectorFrame } from './optics/projector.js';
 export { directionToFisheye, fisheyeToDirection } from './optics/fisheye.js';
-export { HitKind, Tracer, allocGridOutput, tracePixel, type GridOutput, type HitName, type TraceResult } from './trace.js';
+export { DomeMesh, MAX_DOME_TRIANGLES, meshNominalRadius, openUpwardRays, type DomeMeshSource, type TriangleSoup } from './optics/dome-mesh.js';
+export { MeshFileError, parseTriangleFile, triangleFileFormat, type TriangleFileFormat } from './optics/dome-mesh-files.js';
+export { TriangleBvh } from './optics/triangle-bvh.js';
+export { HitKind, Tracer, allocGridOutput, landsOnDome, tracePixel, type GridOutput, type HitName, type TraceResult } from './trace.js';
 export { domePointFromEye, locateDirection, type LocateResult } from './locate.js';
 
 export { createMesh, meshVertexPosition, type WarpMesh } from './mesh/mesh.js';

@@ -105,7 +105,7 @@ export function locateDirection(tracer: Tracer, azimuth: number, altitude: numbe
   if (px === null) return { pixel: null, failure: 'behind-projector', reason: 'the mirror point that would light it is behind the projector' };
   if (!insideFrame(frame, px[0], px[1])) return { pixel: null, failure: 'outside-frame', reason: "outside the projector's frame", beyond: px };
   const back = tracer.pixel(px[0], px[1]);
-  if (back.kind === 'mirror-miss' || angleBetween(back.direction, w) > tolerance) {
+  if (back.kind === 'mirror-miss' || back.kind === 'open' || angleBetween(back.direction, w) > tolerance) {
     return { pixel: null, failure: 'unstable', reason: "at the mirror's silhouette: the light there grazes the mirror and no pixel lights it reliably" };
   }
   return { pixel: px, mirrorPoint: X, domePoint: D };

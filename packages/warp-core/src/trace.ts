@@ -10,13 +10,20 @@ import { pixelToRay, projectorFrame, type ProjectorFrame } from './optics/projec
 import type { Rig } from './rig/model.js';
 
 /** What a projector pixel's light does. Numeric codes are used in typed arrays. */
-export const HitKind = { MirrorMiss: 0, Dome: 1, BelowHorizon: 2 } as const;
+export const HitKind = { MirrorMiss: 0, Dome: 1, BelowHorizon: 2, Open: 3 } as const;
 export type HitKindCode = (typeof HitKind)[keyof typeof HitKind];
-export type HitName = 'mirror-miss' | 'dome' | 'below-horizon';
-export const HIT_NAMES: readonly HitName[] = ['mirror-miss', 'dome', 'below-horizon'];
+export type HitName = 'mirror-miss' | 'dome' | 'below-horizon' | 'open';
+export const HIT_NAMES: readonly HitName[] = ['mirror-miss', 'dome', 'below-horizon', 'open'];
+
+/** True for the kinds whose light lands on a surface (dome or below the horizon) and so has a fisheye (u, v). */
+export function landsOnDome(kind: number): boolean {
+  return kind === HitKind.Dome || kind === HitKind.BelowHorizon;
+}
 
 export type TraceResult =
   | { kind: 'mirror-miss'; ray: Vec3 }
+  /** Reflected, but the ray meets no triangle of an as-built dome (a door, a gap, the floor under a skirt). */
+  | { kind: 'open'; ray: Vec3; mirrorPoint: Vec3; mirrorDistance: number; reflected: Vec3 }
   | {
       kind: 'dome' | 'below-horizon';
       /** Unit ray leaving the lens. */
@@ -55,7 +62,8 @@ export class Tracer {
     if (!onCap(mirror, X)) return { kind: 'mirror-miss', ray }; // blocked by the mount / back of the mirror
     const n = mirrorNormal([0, 0, 0], mirror, X);
     const r = reflect([0, 0, 0], ray, n);
-    const s = rayDomeExit(X, r, dome.radius);
+    const s = dome.mesh ? dome.mesh.firstHit(X, r) : rayDomeExit(X, r, dome.radius);
+    if (s < 0) return { kind: 'open', ray, mirrorPoint: X, mirrorDistance: t, reflected: r };
     const D: Vec3 = [X[0] + s * r[0], X[1] + s * r[1], X[2] + s * r[2]];
     const e = content.eye;
     const w: Vec3 = [D[0] - e[0], D[1] - e[1], D[2] - e[2]];
@@ -81,7 +89,8 @@ export class Tracer {
 
   /**
    * Traces the separable grid of points (xs[i], ys[j]) into typed arrays, row-major (index j·nx + i).
-   * The hot loop allocates nothing. Pixels that miss the mirror get u = v = NaN and kind MirrorMiss.
+   * The hot loop allocates nothing. Pixels that miss the mirror get u = v = NaN and kind MirrorMiss; on an
+   * as-built dome, reflected rays that meet no triangle get u = v = NaN and kind Open.
    */
   grid(xs: ArrayLike<number>, ys: ArrayLike<number>, out: GridOutput): GridOutput {
     const nx = xs.length;
@@ -113,6 +122,7 @@ export class Tracer {
     const oz = pz - mcz;
     const cc = ox * ox + oy * oy + oz * oz - mr * mr;
     const R2 = dome.radius * dome.radius;
+    const bvh = dome.mesh?.bvh;
     const [ex, ey, ez] = content.eye;
     const invFov = 1 / content.fov;
     const { u, v, kind, point, mirrorDistance } = out;
@@ -157,8 +167,28 @@ export class Tracer {
         const rx = dx - dn2 * nx_;
         const ry = dy - dn2 * ny_;
         const rz = dz - dn2 * nz_;
-        const sb = Xx * rx + Xy * ry + Xz * rz;
-        const s = -sb + Math.sqrt(sb * sb - (Xx * Xx + Xy * Xy + Xz * Xz - R2));
+        let s: number;
+        if (bvh === undefined) {
+          const sb = Xx * rx + Xy * ry + Xz * rz;
+          s = -sb + Math.sqrt(sb * sb - (Xx * Xx + Xy * Xy + Xz * Xz - R2));
+        } else {
+          s = bvh.firstHit(Xx, Xy, Xz, rx, ry, rz, 1e-9);
+          if (s < 0) {
+            kind[k] = 3;
+            u[k] = NaN_;
+            v[k] = NaN_;
+            if (mirrorDistance !== undefined) mirrorDistance[k] = t;
+            if (point !== undefined) {
+              // where the light would meet the nominal sphere: its direction, for the room's figures
+              const sb = Xx * rx + Xy * ry + Xz * rz;
+              const s0 = -sb + Math.sqrt(Math.max(0, sb * sb - (Xx * Xx + Xy * Xy + Xz * Xz - R2)));
+              point[3 * k] = Xx + s0 * rx;
+              point[3 * k + 1] = Xy + s0 * ry;
+              point[3 * k + 2] = Xz + s0 * rz;
+            }
+            continue;
+          }
+        }
         const Dx = Xx + s * rx;
         const Dy = Xy + s * ry;
         const Dz = Xz + s * rz;
@@ -214,7 +244,7 @@ export interface GridOutput {
   v: Float32Array | Float64Array;
   /** HitKind codes. */
   kind: Uint8Array;
-  /** Dome points, xyz per entry (optional). */
+  /** Dome points, xyz per entry (optional); for Open entries, where the ray meets the nominal sphere. */
   point?: Float32Array | Float64Array;
   /** Lens-to-mirror distance per entry (optional). */
   mirrorDistance?: Float32Array | Float64Array;

@@ -146,7 +146,7 @@ describe('field errors name the field, what was expected and what came (exact me
       d.projecter = d.projector;
       delete d.projector;
     }, 'projecter: unknown field; did you mean "projector"?'],
-    ['an unknown field, nothing near', (d) => (d.dome.colour = 'white'), 'dome.colour: unknown field (known here: radius, diameter, floor)'],
+    ['an unknown field, nothing near', (d) => (d.dome.colour = 'white'), 'dome.colour: unknown field (known here: radius, diameter, floor, mesh, meshUnits)'],
     ['both radius and diameter', (d) => (d.dome.diameter = 4), 'dome: give dome.radius or dome.diameter, not both'],
     ['no dome size', (d) => (d.dome = { floor: 0.5 }), 'dome.radius: is missing (give dome.radius or dome.diameter)'],
     ['a missing section', (d) => delete d.mirror, 'mirror: is missing'],

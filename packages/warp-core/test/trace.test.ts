@@ -15,12 +15,13 @@ import { METRES_PER_UNIT, parseLengthString, type LengthUnit } from '../src/unit
 import { onCap } from '../src/optics/mirror.js';
 import { RigError, type Rig } from '../src/rig/model.js';
 import { rigFromDocument } from '../src/rig/document.js';
+import { parseTriangleFile } from '../src/optics/dome-mesh-files.js';
 
 type Doc = Record<string, any>;
 
 interface VectorResult {
   pixel: [number, number];
-  hit: 'mirror-miss' | 'dome' | 'below-horizon';
+  hit: 'mirror-miss' | 'dome' | 'below-horizon' | 'open';
   fisheye?: [number, number];
   azimuth?: number;
   altitude?: number;
@@ -31,8 +32,15 @@ interface VectorFile {
   results: VectorResult[];
 }
 
-function vectors(name: 'a' | 'b'): VectorFile {
+function vectors(name: 'a' | 'b' | 'c'): VectorFile {
   return JSON.parse(readFileSync(fileURLToPath(new URL(`../../../fixtures/vectors/vectors-${name}.json`, import.meta.url)), 'utf8'));
+}
+
+/** The rig of a vector file; a `dome.mesh` is read from beside the vector files, as the CLI reads it beside the rig. */
+function vectorRig(file: VectorFile): Rig {
+  return rigFromDocument(file.rig, {
+    loadMesh: (name) => parseTriangleFile(readFileSync(fileURLToPath(new URL(`../../../fixtures/vectors/${name}`, import.meta.url))), name),
+  });
 }
 
 const num = (min: number, max: number) => fc.double({ min, max, noNaN: true, noDefaultInfinity: true });
@@ -50,7 +58,7 @@ function checkAgainst(t: Tracer, file: VectorFile, tol = 1e-6): number {
     const [x, y] = want.pixel;
     const got = t.pixel(x, y);
     expect(got.kind, `pixel ${x},${y}`).toBe(want.hit);
-    if (got.kind === 'mirror-miss') continue;
+    if (got.kind === 'mirror-miss' || got.kind === 'open') continue;
     lit++;
     expect(Math.abs(got.fisheye[0] - want.fisheye![0]), `u at ${x},${y}`).toBeLessThanOrEqual(tol);
     expect(Math.abs(got.fisheye[1] - want.fisheye![1]), `v at ${x},${y}`).toBeLessThanOrEqual(tol);
@@ -72,6 +80,40 @@ describe('the worked vectors (fixtures/vectors, DESIGN.md conventions)', () => {
       expect(new Set(file.results.map((r) => r.hit))).toEqual(new Set(['mirror-miss', 'dome', 'below-horizon']));
     });
   }
+  it('vectors-c.json (an as-built dome: a 2V geodesic mesh on a wall): every pixel, hit kind exact, the rest to 1e-6', () => {
+    const file = vectors('c');
+    const rig = vectorRig(file);
+    expect(rig.dome.mesh?.triangleCount).toBe(60); // 40 triangles and 10 quads of wall, fan-triangulated
+    const lit = checkAgainst(new Tracer(rig), file);
+    expect(lit).toBeGreaterThan(5);
+    expect(new Set(file.results.map((r) => r.hit))).toEqual(new Set(['mirror-miss', 'dome', 'below-horizon', 'open']));
+  });
+
+  it('vectors-c: the grid kernel agrees with the one-pixel trace, open pixels included', () => {
+    const file = vectors('c');
+    const t = new Tracer(vectorRig(file));
+    const xs = file.results.map((r) => r.pixel[0]);
+    const ys = file.results.map((r) => r.pixel[1]);
+    const g = t.grid(xs, ys, allocGridOutput(xs.length, ys.length, { points: true }));
+    const codes: Record<string, number> = { 'mirror-miss': HitKind.MirrorMiss, dome: HitKind.Dome, 'below-horizon': HitKind.BelowHorizon, open: HitKind.Open };
+    let open = 0;
+    for (let j = 0; j < ys.length; j++) {
+      for (let i = 0; i < xs.length; i++) {
+        const k = j * xs.length + i;
+        const h = t.pixel(xs[i], ys[j]);
+        expect(g.kind[k], `${xs[i]},${ys[j]}`).toBe(codes[h.kind]);
+        if (h.kind === 'open') open++;
+        if (h.kind !== 'dome' && h.kind !== 'below-horizon') {
+          expect(g.u[k]).toBeNaN();
+          continue;
+        }
+        expect(Math.abs(g.u[k] - h.fisheye[0])).toBeLessThan(1e-12);
+        expect(Math.abs(g.v[k] - h.fisheye[1])).toBeLessThan(1e-12);
+        for (let a = 0; a < 3; a++) expect(Math.abs(g.point![3 * k + a] - h.domePoint[a])).toBeLessThan(1e-12);
+      }
+    }
+    expect(open).toBeGreaterThan(10);
+  });
 });
 
 // ——— the same rigs in other units ———

@@ -208,7 +208,7 @@ export function registerPattern(program: Command): void {
           e.marker.label = String(k + 1);
           if (tracer) {
             const h = tracer.pixel(e.marker.x, e.marker.y);
-            e.predicted = h.kind === 'mirror-miss' ? null : { azimuth: wrapDegrees(h.azimuth * RAD), altitude: h.altitude * RAD };
+            e.predicted = h.kind === 'mirror-miss' || h.kind === 'open' ? null : { azimuth: wrapDegrees(h.azimuth * RAD), altitude: h.altitude * RAD };
           }
         });
         const files: string[] = [];

@@ -20,7 +20,7 @@ export function registerProbe(program: Command): void {
       const tracer = new Tracer(rig);
       const results = opts.pixel.map(([x, y]) => {
         const h = tracer.pixel(x, y);
-        if (h.kind === 'mirror-miss') return { pixel: [x, y], hit: h.kind };
+        if (h.kind === 'mirror-miss' || h.kind === 'open') return { pixel: [x, y], hit: h.kind };
         return { pixel: [x, y], hit: h.kind, fisheye: h.fisheye, azimuth: h.azimuth * RAD, altitude: h.altitude * RAD, domePoint: h.domePoint };
       });
       if (opts.json) {

@@ -3,6 +3,7 @@ import { readFileSync } from 'node:fs';
 import { parseDocument } from 'yaml';
 import { RigError, rigFromDocument, rigWarnings, type Rig } from '@skyfold/warp-core';
 import { UserError } from '../errors.js';
+import { readDomeMesh } from './dome-mesh-file.js';
 
 function lineCol(text: string, pos: number): [number, number] {
   let line = 1;
@@ -63,7 +64,7 @@ export function loadRig(path: string): LoadedRig {
   const text = readTextFile(path, 'rig file');
   const document = parseDocumentText(text, path);
   try {
-    const rig = rigFromDocument(document);
+    const rig = rigFromDocument(document, { loadMesh: (file) => readDomeMesh(path, file) });
     return { rig, document, warnings: rigWarnings(rig).map((w) => `${path}: ${w}`), path };
   } catch (e) {
     if (e instanceof RigError) throw new UserError(`${path}: ${e.message}`);

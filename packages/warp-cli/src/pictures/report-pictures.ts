@@ -190,7 +190,7 @@ export function drawSideView(a: RigAnalysis, width = 960, height = 600): RasterI
     }
     const M = hit.mirrorPoint;
     const l = landing(M, hit.reflected, R, floor);
-    const col = hit.kind === 'dome' ? (hit.fisheye[0] - 0.5) ** 2 + (hit.fisheye[1] - 0.5) ** 2 <= 0.25 ? PALETTE.litDark : PALETTE.outsideContent : PALETTE.belowHorizon;
+    const col = hit.kind === 'open' ? PALETTE.belowHorizon : hit.kind === 'dome' ? (hit.fisheye[0] - 0.5) ** 2 + (hit.fisheye[1] - 0.5) ** 2 <= 0.25 ? PALETTE.litDark : PALETTE.outsideContent : PALETTE.belowHorizon;
     drawLine(img, X(M), Y(M[2]), X(l.point), Y(l.point[2]), col, 1.2, 0.8);
     drawLine(img, X(P), Y(P[2]), X(M), Y(M[2]), PALETTE.beam, 1.5, 0.9);
   }

@@ -26,7 +26,7 @@ export interface PixelResolution {
 export function pixelResolution(tracer: Tracer, x: number, y: number, h = 0.05): PixelResolution | null {
   const d = (px: number, py: number): Vec3 | null => {
     const t = tracer.pixel(px, py);
-    return t.kind === 'mirror-miss' ? null : t.direction;
+    return t.kind === 'mirror-miss' || t.kind === 'open' ? null : t.direction;
   };
   const xm = d(x - h, y), xp = d(x + h, y), ym = d(x, y - h), yp = d(x, y + h);
   if (!xm || !xp || !ym || !yp) return null;

@@ -48,7 +48,8 @@ export interface SampleOptions {
 /** Fate of one traced point; the shadow test runs only when the rig has a body. */
 export function fateOf(tracer: Tracer, kind: number, u: number, v: number, X: Vec3, D: Vec3): FateCode {
   if (kind === HitKind.MirrorMiss) return Fate.MirrorMiss;
-  if (kind === HitKind.BelowHorizon) return Fate.BelowHorizon;
+  // light through an opening of an as-built dome lands in the room, as light below the springline does
+  if (kind === HitKind.BelowHorizon || kind === HitKind.Open) return Fate.BelowHorizon;
   const du = u - 0.5;
   const dv = v - 0.5;
   if (du * du + dv * dv > 0.25 + 1e-12) return Fate.OutsideContent;
@@ -116,6 +117,12 @@ export function sampleFrame(tracer: Tracer, o: SampleOptions): FrameSample {
 export function probePoint(tracer: Tracer, x: number, y: number, dir: Vec3): FateCode {
   const h = tracer.pixel(x, y);
   if (h.kind === 'mirror-miss') return Fate.MirrorMiss;
+  if (h.kind === 'open') {
+    dir[0] = h.reflected[0];
+    dir[1] = h.reflected[1];
+    dir[2] = h.reflected[2];
+    return Fate.BelowHorizon;
+  }
   dir[0] = h.direction[0];
   dir[1] = h.direction[1];
   dir[2] = h.direction[2];

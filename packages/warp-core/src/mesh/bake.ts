@@ -5,7 +5,7 @@
  */
 import { DEG } from '../math.js';
 import type { Rig } from '../rig/model.js';
-import { allocGridOutput, HitKind, Tracer } from '../trace.js';
+import { allocGridOutput, Tracer, landsOnDome } from '../trace.js';
 import { brightnessFactor, contentVisible, domeAreaOnGrid, featherMask, fillUnlit, quantile, referenceArea } from './field.js';
 import { createMesh, type WarpMesh } from './mesh.js';
 
@@ -100,7 +100,7 @@ export function buildMesh(tracer: Tracer, cols: number, rows: number, o: BakeOpt
   const lit = new Uint8Array(n);
   const traced = new Uint8Array(n);
   for (let k = 0; k < n; k++) {
-    traced[k] = g.kind[k] === HitKind.MirrorMiss ? 0 : 1;
+    traced[k] = landsOnDome(g.kind[k]) ? 1 : 0;
     lit[k] = contentVisible(tracer, g.u[k], g.v[k], g.kind[k]) ? 1 : 0;
     mesh.brightness[k] = lit[k] ? brightnessFactor(area[k], areaMax, { strength: o.brightness, floor: o.brightnessFloor }) : 0;
   }
@@ -161,7 +161,7 @@ export function measureAccuracy(tracer: Tracer, mesh: WarpMesh, masterSize: numb
         for (let a = 0; a < k; a++) {
           const fx = (a + 0.5) / k;
           const idx = (r * k + b) * nx + (c * k + a);
-          if (g.kind[idx] === HitKind.MirrorMiss) continue;
+          if (!landsOnDome(g.kind[idx])) continue;
           const w00 = (1 - fx) * (1 - fy);
           const w10 = fx * (1 - fy);
           const w01 = (1 - fx) * fy;
@@ -247,8 +247,8 @@ export function measureAccuracy(tracer: Tracer, mesh: WarpMesh, masterSize: numb
 }
 
 function deriv(c: { kind: Uint8Array; u: ArrayLike<number>; v: ArrayLike<number> }, m: typeof c, p: typeof c, k: number, h: number): [number, number] | null {
-  const hasM = m.kind[k] !== HitKind.MirrorMiss;
-  const hasP = p.kind[k] !== HitKind.MirrorMiss;
+  const hasM = landsOnDome(m.kind[k]);
+  const hasP = landsOnDome(p.kind[k]);
   if (hasM && hasP) return [(p.u[k] - m.u[k]) / (2 * h), (p.v[k] - m.v[k]) / (2 * h)];
   if (hasP) return [(p.u[k] - c.u[k]) / h, (p.v[k] - c.v[k]) / h];
   if (hasM) return [(c.u[k] - m.u[k]) / h, (c.v[k] - m.v[k]) / h];

@@ -2,7 +2,7 @@
  * Sampled fields over the projector frame on separable grids: the trace, the dome area each pixel
  * lights (for brightness), and the mask with an optional soft edge.
  */
-import { HitKind, allocGridOutput, type GridOutput, type Tracer } from '../trace.js';
+import { allocGridOutput, type GridOutput, type Tracer, landsOnDome } from '../trace.js';
 
 /** Dome area lit per unit of projector pixel area, at each point of the separable grid (xs, ys). */
 export function domeAreaOnGrid(tracer: Tracer, xs: ArrayLike<number>, ys: ArrayLike<number>, h = 0.25): Float64Array {
@@ -19,7 +19,7 @@ export function domeAreaOnGrid(tracer: Tracer, xs: ArrayLike<number>, ys: ArrayL
   const dx = [0, 0, 0];
   const dy = [0, 0, 0];
   for (let k = 0; k < nx * ny; k++) {
-    if (c.kind[k] === HitKind.MirrorMiss) {
+    if (!landsOnDome(c.kind[k])) {
       area[k] = Number.NaN;
       continue;
     }
@@ -39,8 +39,8 @@ export function domeAreaOnGrid(tracer: Tracer, xs: ArrayLike<number>, ys: ArrayL
 /** Central difference of the dome point, one-sided where a neighbour misses the mirror. */
 function difference(out: number[], c: GridOutput, m: GridOutput, p: GridOutput, k: number, h: number): boolean {
   const P = c.point!;
-  const hasM = m.kind[k] !== HitKind.MirrorMiss;
-  const hasP = p.kind[k] !== HitKind.MirrorMiss;
+  const hasM = landsOnDome(m.kind[k]);
+  const hasP = landsOnDome(p.kind[k]);
   const Pm = m.point!;
   const Pp = p.point!;
   for (let a = 0; a < 3; a++) {
@@ -96,7 +96,7 @@ export function brightnessFactor(area: number, areaMax: number, o: BrightnessOpt
 
 /** True when the content holds this point: it reached the mirror and lies within the content's fov. */
 export function contentVisible(tracer: Tracer, u: number, v: number, kind: number): boolean {
-  if (kind === HitKind.MirrorMiss) return false;
+  if (!landsOnDome(kind)) return false;
   const du = u - 0.5;
   const dv = v - 0.5;
   return du * du + dv * dv <= 0.25 + 1e-12;

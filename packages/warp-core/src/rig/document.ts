@@ -4,6 +4,7 @@
  */
 import { DEG, length, normalize, RAD, type Vec3 } from '../math.js';
 import { RigError, validateRigGeometry, type ProjectorBody, type Rig } from './model.js';
+import { DomeMesh, MAX_DOME_TRIANGLES, type TriangleSoup } from '../optics/dome-mesh.js';
 import { canonicalUnit, fromMetres, isLengthUnit, LENGTH_UNITS, LengthSyntaxError, METRES_PER_UNIT, parseLengthString, type LengthUnit } from '../units.js';
 
 type Doc = Record<string, unknown>;
@@ -14,7 +15,7 @@ const MAX_LENGTH = 1e4;
 /** The fields a rig document may hold, by section; used for unknown-field checks with a did-you-mean. */
 export const RIG_FIELDS: Readonly<Record<string, readonly string[]>> = {
   '': ['units', 'name', 'notes', 'dome', 'projector', 'mirror', 'content'],
-  dome: ['radius', 'diameter', 'floor'],
+  dome: ['radius', 'diameter', 'floor', 'mesh', 'meshUnits'],
   mirror: ['radius', 'cap', 'center', 'axis', 'capAngle'],
   'mirror.cap': ['width', 'depth'],
   projector: ['position', 'lookAt', 'roll', 'up', 'resolution', 'throwRatio', 'lensShift', 'body', 'aperture', 'minFocus'],
@@ -166,11 +167,19 @@ export function documentUnits(doc: Doc, field = 'units'): LengthUnit {
   return u;
 }
 
+export interface RigDocumentOptions {
+  /**
+   * Reads the triangle file `dome.mesh` names (a path relative to the rig file's folder), in the file's
+   * own units; throws its own error (naming the file and line) when it cannot. The core reads no files.
+   */
+  loadMesh?: (file: string) => TriangleSoup;
+}
+
 /**
  * A parsed rig document → a validated Rig. Throws RigError naming the field. Warnings are for rigs that
  * work but are probably not what was meant (see `rigWarnings`).
  */
-export function rigFromDocument(input: unknown): Rig {
+export function rigFromDocument(input: unknown, options: RigDocumentOptions = {}): Rig {
   if (typeof input !== 'object' || input === null || Array.isArray(input)) throw new RigError('', `expected a rig document (a mapping of dome, projector, mirror and content), got ${showValue(input)}`);
   const doc = input as Doc;
   checkKnownFields(doc, '', RIG_FIELDS['']);
@@ -185,6 +194,7 @@ export function rigFromDocument(input: unknown): Rig {
   else if (dome.diameter !== undefined) domeRadius = r.length(dome.diameter, 'dome.diameter', 'positive') / 2;
   else throw new RigError('dome.radius', 'is missing (give dome.radius or dome.diameter)');
   const floor = dome.floor === undefined ? undefined : r.length(dome.floor, 'dome.floor', 'positive');
+  const mesh = domeMeshFromDocument(dome, units, options);
 
   const mirror = section(doc, 'mirror', true)!;
   checkKnownFields(mirror, 'mirror', RIG_FIELDS.mirror);
@@ -255,13 +265,33 @@ export function rigFromDocument(input: unknown): Rig {
   const rig: Rig = {
     units,
     name,
-    dome: { radius: domeRadius, floor },
+    dome: { radius: domeRadius, floor, mesh },
     mirror: { center, radius: mirrorRadius, axis, capAngle },
     projector: { position, lookAt, roll, up, resolution: [resV[0], resV[1]], throwRatio, lensShift, body, aperture, minFocus },
     content: { fov: fovDeg * DEG, eye },
   };
   validateRigGeometry(rig);
   return rig;
+}
+
+function domeMeshFromDocument(dome: Doc, units: LengthUnit, options: RigDocumentOptions): DomeMesh | undefined {
+  if (dome.mesh === undefined || dome.mesh === null) {
+    if (dome.meshUnits !== undefined) throw new RigError('dome.meshUnits', 'is given without dome.mesh');
+    return undefined;
+  }
+  if (typeof dome.mesh !== 'string' || dome.mesh.trim() === '') throw new RigError('dome.mesh', `expected the path of an OBJ, STL or PLY file, got ${showValue(dome.mesh)}`);
+  const meshUnits = dome.meshUnits === undefined ? undefined : documentUnits({ units: dome.meshUnits }, 'dome.meshUnits');
+  if (!options.loadMesh) throw new RigError('dome.mesh', `names the file ${showValue(dome.mesh)}, which only a caller that reads files can load`);
+  const soup = options.loadMesh(dome.mesh);
+  if (soup.indices.length / 3 > MAX_DOME_TRIANGLES) throw new RigError('dome.mesh', `more than ${MAX_DOME_TRIANGLES} triangles`);
+  const k = METRES_PER_UNIT[meshUnits ?? units];
+  const positions = new Float64Array(soup.positions.length);
+  for (let i = 0; i < positions.length; i++) {
+    const x = soup.positions[i] * k;
+    if (!Number.isFinite(x) || Math.abs(x) > MAX_LENGTH) throw new RigError('dome.mesh', `vertex ${Math.floor(i / 3) + 1} lies beyond 10 km (or is not a number): check the mesh's units`);
+    positions[i] = x;
+  }
+  return new DomeMesh(positions, soup.indices, { file: dome.mesh, units: meshUnits });
 }
 
 /**
@@ -288,6 +318,8 @@ export function rigToDocument(rig: Rig, units: LengthUnit = rig.units, digits = 
   const doc: Doc = { units };
   if (rig.name) doc.name = rig.name;
   doc.dome = { radius: L(rig.dome.radius), ...(rig.dome.floor !== undefined ? { floor: L(rig.dome.floor) } : {}) };
+  const source = rig.dome.mesh?.source;
+  if (source) Object.assign(doc.dome as Doc, { mesh: source.file, ...(source.units ? { meshUnits: source.units } : {}) });
   doc.mirror = { radius: L(rig.mirror.radius), center: P(rig.mirror.center), axis: D(rig.mirror.axis), capAngle: round(rig.mirror.capAngle * RAD, 9) };
   const p = rig.projector;
   const proj: Doc = {

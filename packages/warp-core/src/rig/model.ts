@@ -4,12 +4,15 @@
  */
 import { cross, DEG, dot, length, normalize, safeAcos, scale, sub, type ReadonlyVec3, type Vec3 } from '../math.js';
 import { formatLength, type LengthUnit } from '../units.js';
+import type { DomeMesh } from '../optics/dome-mesh.js';
 
 export interface DomeModel {
   /** Radius of the dome sphere, centred on the world origin. */
   radius: number;
   /** How far the floor lies below the springline (positive), if known. */
   floor?: number;
+  /** The dome as built (DESIGN.md "As-built domes"); `radius` stays the nominal sphere. */
+  mesh?: DomeMesh;
 }
 
 export interface MirrorModel {

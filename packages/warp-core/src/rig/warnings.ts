@@ -17,7 +17,7 @@ export function rigWarnings(rig: Rig): string[] {
   let hits = 0;
   let dome = 0;
   for (const k of g.kind) {
-    if (k !== HitKind.MirrorMiss) hits++;
+    if (k !== HitKind.MirrorMiss) hits++; // open counts: it reached the mirror
     if (k === HitKind.Dome) dome++;
   }
   if (hits === 0) {
