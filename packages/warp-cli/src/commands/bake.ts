@@ -1,29 +1,18 @@
 /** `skyfold bake`: the warp mesh, with its measured accuracy, in open formats. */
-import { mkdirSync, renameSync, writeFileSync } from 'node:fs';
-import { dirname, basename, join } from 'node:path';
-import { InvalidArgumentError, type Command } from 'commander';
+import { InvalidArgumentError, Option, type Command } from 'commander';
 import { BAKE_DEFAULTS, bakeMesh, rigToDocument, type BakeOptions, type BakeResult } from '@skyfold/warp-core';
-import { loadRig } from '../io/document-file.js';
+import { readRig } from '../io/document-file.js';
+import { writeOutputFile } from '../io/output-file.js';
 import { UserError } from '../errors.js';
 import { encodeMesh, formatFromPath, MESH_FORMATS, type MeshFormat } from '../export/index.js';
 import { printJson } from '../format.js';
 import { collect, parseNumberIn, parsePositiveInt } from '../options.js';
-import { warn } from '../messages.js';
 import { VERSION } from '../version.js';
 
 function parseGrid(s: string): [number, number] {
   const m = /^\s*(\d+)\s*[xX×]\s*(\d+)\s*$/.exec(s);
   if (!m || Number(m[1]) < 2 || Number(m[2]) < 2) throw new InvalidArgumentError(`expected COLSxROWS with at least 2 each (e.g. 321x201), got "${s}"`);
   return [Number(m[1]), Number(m[2])];
-}
-
-/** Writes bytes atomically: a temporary file beside the target, then a rename. */
-export function writeFileAtomic(path: string, bytes: Uint8Array | string): void {
-  const dir = dirname(path);
-  mkdirSync(dir, { recursive: true });
-  const tmp = join(dir, `.${basename(path)}.${process.pid}.partial`);
-  writeFileSync(tmp, bytes);
-  renameSync(tmp, path);
 }
 
 /** The command's options: the core's bake settings plus where and how to write. */
@@ -63,10 +52,7 @@ export function registerBake(program: Command): void {
     .description('bake the warp mesh (fisheye u, v + brightness + mask per vertex) and write it in open formats')
     .argument('<rig>', 'rig file (YAML or JSON)')
     .requiredOption('-o, --output <file>', `output file, repeatable; format from the extension (${MESH_FORMATS.map((f) => '.' + f).join(' ')})`, collect((s) => s))
-    .option('--format <format>', 'format for every -o file, overriding the extensions', (s) => {
-      if (!(MESH_FORMATS as readonly string[]).includes(s)) throw new InvalidArgumentError(`expected one of ${MESH_FORMATS.join(', ')}, got "${s}"`);
-      return s as MeshFormat;
-    })
+    .addOption(new Option('--format <format>', 'format for every -o file, overriding the extensions').choices(MESH_FORMATS))
     .option('--grid <colsxrows>', 'vertices across and down (default: chosen to meet --tolerance)', parseGrid)
     .option('--tolerance <px>', 'largest interpolation error over 99% of lit cells, in projector pixels', parseNumberIn(1e-3, 100), BAKE_DEFAULTS.tolerance)
     .option('--master-size <n>', 'dome-master size the errors in dome-master pixels refer to', (s) => parsePositiveInt(s), BAKE_DEFAULTS.masterSize)
@@ -76,8 +62,7 @@ export function registerBake(program: Command): void {
     .option('--json', 'machine-readable summary')
     .addHelpText('after', '\nExamples:\n  skyfold bake rig.yaml -o mesh.glb\n  skyfold bake rig.yaml -o mesh.glb -o mesh.mpcdi -o mesh.csv --feather 2\n  skyfold bake rig.yaml -o mesh.glb --grid 321x201 --json')
     .action(async (rigPath: string, opts: BakeCliOptions) => {
-      const { rig, warnings } = loadRig(rigPath);
-      warnings.forEach(warn);
+      const rig = readRig(rigPath);
       const targets = opts.output.map((path) => {
         const format = opts.format ?? formatFromPath(path);
         if (!format) throw new UserError(`${path}: cannot tell the mesh format from the extension (expected ${MESH_FORMATS.map((f) => '.' + f).join(', ')}, or give --format)`);
@@ -98,12 +83,7 @@ export function registerBake(program: Command): void {
       const result = bakeMesh(rig, settings, meta);
       meta.bake = { ...settings, grid: [result.mesh.cols, result.mesh.rows], accuracy: result.accuracy, areaMax: result.areaMax };
       for (const t of targets) {
-        const bytes = await encodeMesh(result.mesh, t.format);
-        try {
-          writeFileAtomic(t.path, bytes);
-        } catch (e) {
-          throw new UserError(`${t.path}: cannot write: ${(e as Error).message}`);
-        }
+        writeOutputFile(t.path, await encodeMesh(result.mesh, t.format));
       }
       const summary = bakeSummary(result, targets.map((t) => t.path));
       if (opts.json) {

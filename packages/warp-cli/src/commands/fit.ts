@@ -1,5 +1,5 @@
 /** `skyfold fit`: solves rig quantities from tape distances and observed marker positions. */
-import { existsSync, realpathSync, writeFileSync } from 'node:fs';
+import { realpathSync } from 'node:fs';
 import { resolve } from 'node:path';
 import { InvalidArgumentError, type Command } from 'commander';
 import { Document, isMap, visit } from 'yaml';
@@ -22,7 +22,8 @@ import {
   type LengthUnit,
   type MeasurementSet,
 } from '@skyfold/warp-core';
-import { loadRig, parseDocumentText, readTextFile } from '../io/document-file.js';
+import { loadRig, readDocumentFile } from '../io/document-file.js';
+import { refuseToOverwrite, writeOutputFile } from '../io/output-file.js';
 import { UserError } from '../errors.js';
 import { fixed, printJson, table } from '../format.js';
 import { warn } from '../messages.js';
@@ -51,14 +52,7 @@ function parseFreeList(text: string): FreeQuantity[] {
 
 /** Reads and checks a measurement file; every failure is a one-line UserError naming the file and field. */
 export function loadMeasurements(path: string): MeasurementSet {
-  const text = readTextFile(path, 'measurement file');
-  const document = parseDocumentText(text, path);
-  try {
-    return measurementsFromDocument(document);
-  } catch (e) {
-    if (e instanceof RigError) throw new UserError(`${path}: ${e.message}`);
-    throw e;
-  }
+  return readDocumentFile(path, 'measurement file', measurementsFromDocument).value;
 }
 
 /** Digits worth showing for a residual in a unit (about 0.1 mm). */
@@ -189,9 +183,7 @@ export function registerFit(program: Command): void {
     .action((rigPath: string, measurementsPath: string, opts: FitCliOptions) => {
       const { rig, warnings: rigWarnings } = loadRig(rigPath);
       const set = loadMeasurements(measurementsPath);
-      if (opts.output && existsSync(opts.output) && !opts.force) {
-        throw new UserError(`${opts.output}: already exists${sameFile(opts.output, rigPath) ? ' (it is the input rig)' : ''}; pass --force to overwrite it`);
-      }
+      if (opts.output) refuseToOverwrite(opts.output, opts.force, sameFile(opts.output, rigPath) ? ' (it is the input rig)' : '');
       let result: FitResult;
       try {
         result = fitRig(rig, set, { robust: opts.robust ?? FIT_DEFAULTS.robust, free: opts.free, trilaterate: opts.trilaterate });
@@ -200,13 +192,7 @@ export function registerFit(program: Command): void {
         throw e;
       }
       const units = set.units;
-      if (opts.output) {
-        try {
-          writeFileSync(opts.output, fittedRigText(result, rigPath, measurementsPath, units));
-        } catch (e) {
-          throw new UserError(`${opts.output}: cannot write: ${(e as Error).message}`);
-        }
-      }
+      if (opts.output) writeOutputFile(opts.output, fittedRigText(result, rigPath, measurementsPath, units));
       const ru = rig.units;
       if (opts.json) {
         const parameters: Record<string, unknown> = {};

@@ -1,8 +1,7 @@
 /** `skyfold init`: a commented starter rig for the demo scenario. */
-import { existsSync, writeFileSync } from 'node:fs';
 import { Option, type Command } from 'commander';
 import { starterRigText } from '../demo-rig.js';
-import { UserError } from '../errors.js';
+import { refuseToOverwrite, writeOutputFile } from '../io/output-file.js';
 import { printJson } from '../format.js';
 
 export function registerInit(program: Command): void {
@@ -21,12 +20,8 @@ export function registerInit(program: Command): void {
         else process.stdout.write(text);
         return;
       }
-      if (existsSync(opts.output) && !opts.force) throw new UserError(`${opts.output}: already exists; pass --force to overwrite it`);
-      try {
-        writeFileSync(opts.output, text);
-      } catch (e) {
-        throw new UserError(`${opts.output}: cannot write: ${(e as Error).message}`);
-      }
+      refuseToOverwrite(opts.output, opts.force);
+      writeOutputFile(opts.output, text);
       if (opts.json) printJson({ file: opts.output, units: opts.units });
       else process.stdout.write(`wrote ${opts.output} (units: ${opts.units}); edit it with your measurements, then try: skyfold probe ${opts.output} --pixel 960,600\n`);
     });

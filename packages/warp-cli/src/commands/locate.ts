@@ -1,10 +1,9 @@
 /** `skyfold locate`: the inverse of probe — which projector pixel lights a dome direction. */
 import type { Command } from 'commander';
 import { DEG, locateDirection, Tracer } from '@skyfold/warp-core';
-import { loadRig } from '../io/document-file.js';
+import { readRig } from '../io/document-file.js';
 import { fixed, printJson, table } from '../format.js';
 import { collect, parseNumberPair } from '../options.js';
-import { warn } from '../messages.js';
 import { InvalidArgumentError } from 'commander';
 
 function parseDirection(s: string): [number, number] {
@@ -22,8 +21,7 @@ export function registerLocate(program: Command): void {
     .option('--json', 'machine-readable output')
     .addHelpText('after', '\nExamples:\n  skyfold locate rig.yaml --direction 0,90\n  skyfold locate rig.yaml --direction 0,30 --direction 90,30 --json')
     .action((rigPath: string, opts: { direction: [number, number][]; json?: boolean }) => {
-      const { rig, warnings } = loadRig(rigPath);
-      warnings.forEach(warn);
+      const rig = readRig(rigPath);
       const tracer = new Tracer(rig);
       const results = opts.direction.map(([az, alt]) => {
         const r = locateDirection(tracer, az * DEG, alt * DEG);

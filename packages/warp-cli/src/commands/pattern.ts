@@ -3,10 +3,8 @@
  * direction marks, numbered dots), optionally already warped for a rig; `markers` draws numbered
  * crosshairs at projector pixels for observation sessions, with a measurement-file template.
  */
-import { existsSync, writeFileSync } from 'node:fs';
 import { extname } from 'node:path';
 import { InvalidArgumentError, Option, type Command } from 'commander';
-import sharp from 'sharp';
 import {
   DEG,
   DOME_PATTERN_DEFAULTS,
@@ -23,25 +21,18 @@ import {
   type Marker,
   type PatternDot,
   type RemapFilter,
-  type Rig,
 } from '@skyfold/warp-core';
-import { loadRig } from '../io/document-file.js';
+import { readRig } from '../io/document-file.js';
+import { encodePng } from '../io/image-codec.js';
+import { refuseToOverwrite, writeOutputFile } from '../io/output-file.js';
 import { UserError } from '../errors.js';
 import { fixed, printJson } from '../format.js';
 import { warn } from '../messages.js';
 import { collect, parseNumberIn, parseNumberPair, parsePositiveInt } from '../options.js';
 
 async function writePng(path: string, img: ImageBuffer, force: boolean | undefined): Promise<void> {
-  if (existsSync(path) && !force) throw new UserError(`${path}: already exists; pass --force to overwrite it`);
-  const data = img.data as Uint8Array;
-  try {
-    const png = await sharp(Buffer.from(data.buffer, data.byteOffset, data.byteLength), { raw: { width: img.width, height: img.height, channels: img.channels } })
-      .png()
-      .toBuffer();
-    writeFileSync(path, png);
-  } catch (e) {
-    throw new UserError(`${path}: cannot write: ${(e as Error).message}`);
-  }
+  refuseToOverwrite(path, force);
+  writeOutputFile(path, await encodePng(img));
 }
 
 function checkPngPath(path: string): void {
@@ -123,12 +114,7 @@ export function registerPattern(program: Command): void {
         json?: boolean;
       }) => {
         checkPngPath(opts.output);
-        let rig: Rig | undefined;
-        if (opts.warp) {
-          const loaded = loadRig(opts.warp);
-          loaded.warnings.forEach(warn);
-          rig = loaded.rig;
-        }
+        const rig = opts.warp ? readRig(opts.warp) : undefined;
         const fovDeg = opts.fov ?? (rig ? rig.content.fov * RAD : 180);
         if (opts.size < 16) throw new UserError(`--size: expected at least 16 pixels, got ${opts.size}`);
         const master = drawDomePattern({
@@ -181,12 +167,7 @@ export function registerPattern(program: Command): void {
         json?: boolean;
       }) => {
         checkPngPath(opts.output);
-        let rig: Rig | undefined;
-        if (opts.rig) {
-          const loaded = loadRig(opts.rig);
-          loaded.warnings.forEach(warn);
-          rig = loaded.rig;
-        }
+        const rig = opts.rig ? readRig(opts.rig) : undefined;
         const size = opts.resolution ?? rig?.projector.resolution;
         if (!size) throw new UserError('pattern markers: expected --rig or --resolution to know the frame size, got neither');
         const [W, H] = size;

@@ -3,13 +3,12 @@ import { basename, dirname, extname, join } from 'node:path';
 import { Option, type Command } from 'commander';
 import { stringify } from 'yaml';
 import { formatLength, PLAN_DEFAULTS, PLAN_OBJECTIVES, planRig, RigError, rigToDocument, type PlanCandidate, type PlanObjective, type PlanResult } from '@skyfold/warp-core';
-import { loadRig } from '../io/document-file.js';
+import { readRig } from '../io/document-file.js';
+import { writeOutputFile } from '../io/output-file.js';
 import { UserError } from '../errors.js';
 import { printJson, table } from '../format.js';
-import { warn } from '../messages.js';
 import { collect, parsePositiveInt } from '../options.js';
 import { VERSION } from '../version.js';
-import { writeFileAtomic } from './bake.js';
 
 interface PlanCliOptions {
   vary?: string[];
@@ -65,8 +64,7 @@ export function registerPlan(program: Command): void {
       '\nExamples:\n  skyfold plan rig.yaml\n  skyfold plan rig.yaml --vary projector.position --objective coverage\n  skyfold plan rig.yaml --vary mirror.center.z --vary projector.lookAt --seed 7 --evaluations 3000 -o better.yaml',
     )
     .action((rigPath: string, opts: PlanCliOptions) => {
-      const { rig, warnings } = loadRig(rigPath);
-      warnings.forEach(warn);
+      const rig = readRig(rigPath);
       if (opts.evaluations < 20) throw new UserError(`--evaluations: expected at least 20, got ${opts.evaluations}`);
       let result: PlanResult;
       try {
@@ -84,11 +82,7 @@ export function registerPlan(program: Command): void {
           `# Placement found by skyfold ${VERSION} plan (objective ${result.objective}, seed ${result.seed}, ${result.evaluations} evaluations)\n` +
           `# from ${rigPath}; varied: ${Object.keys(best.values).join(', ')}.\n` +
           `# Check it with \`skyfold report\` before moving anything; measure the real placement and refine with \`skyfold fit\`.\n`;
-        try {
-          writeFileAtomic(out, header + stringify(doc, { flow: false }));
-        } catch (e) {
-          throw new UserError(`${out}: cannot write: ${(e as Error).message}`);
-        }
+        writeOutputFile(out, header + stringify(doc, { flow: false }));
         wrote = out;
       }
       if (opts.json) {

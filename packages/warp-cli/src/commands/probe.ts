@@ -1,10 +1,9 @@
 /** `skyfold probe`: traces projector pixels to the dome and the fisheye. */
 import type { Command } from 'commander';
 import { formatLength, RAD, Tracer } from '@skyfold/warp-core';
-import { loadRig } from '../io/document-file.js';
+import { readRig } from '../io/document-file.js';
 import { fixed, printJson, table } from '../format.js';
 import { collect, parseNumberPair } from '../options.js';
-import { warn } from '../messages.js';
 
 export function registerProbe(program: Command): void {
   program
@@ -15,8 +14,7 @@ export function registerProbe(program: Command): void {
     .option('--json', 'machine-readable output')
     .addHelpText('after', '\nExamples:\n  skyfold probe rig.yaml --pixel 960.5,600.5\n  skyfold probe rig.yaml --pixel 10,10 --pixel 1900,1190 --json')
     .action((rigPath: string, opts: { pixel: [number, number][]; json?: boolean }) => {
-      const { rig, warnings } = loadRig(rigPath);
-      warnings.forEach(warn);
+      const rig = readRig(rigPath);
       const tracer = new Tracer(rig);
       const results = opts.pixel.map(([x, y]) => {
         const h = tracer.pixel(x, y);

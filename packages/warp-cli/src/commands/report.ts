@@ -1,26 +1,19 @@
 /** `skyfold report`: coverage, resolution, brightness, spill, focus and safety figures, pictures and an HTML page. */
 import { join } from 'node:path';
 import type { Command } from 'commander';
-import sharp from 'sharp';
 import { analyzeRig, describeArc, formatLength, REPORT_DEFAULTS, type ReportFigures } from '@skyfold/warp-core';
 import { reportHtml, type HtmlPicture } from '../pictures/report-page.js';
 import { reportPictures } from '../pictures/report-pictures.js';
 import type { RasterImage } from '../pictures/raster.js';
 import { svgToPng } from '../pictures/render.js';
 import type { Picture } from '../pictures/svg.js';
-import { loadRig } from '../io/document-file.js';
+import { readRig } from '../io/document-file.js';
+import { encodePng } from '../io/image-codec.js';
+import { writeFileAtomic } from '../io/output-file.js';
 import { UserError } from '../errors.js';
 import { printJson } from '../format.js';
-import { warn } from '../messages.js';
 import { parsePositiveInt } from '../options.js';
 import { VERSION } from '../version.js';
-import { writeFileAtomic } from './bake.js';
-
-export async function encodePng(img: RasterImage): Promise<Buffer> {
-  return sharp(Buffer.from(img.data.buffer, img.data.byteOffset, img.data.byteLength), { raw: { width: img.width, height: img.height, channels: 4 } })
-    .png({ compressionLevel: 9 })
-    .toBuffer();
-}
 
 /** The figures as a person reads them, one line each. */
 export function reportSummary(f: ReportFigures): string[] {
@@ -51,8 +44,7 @@ export function registerReport(program: Command): void {
     .option('--json', 'print every figure as JSON (stable keys: coverage, pixels, resolution, brightness, spill, focus, safety)')
     .addHelpText('after', '\nExamples:\n  skyfold report rig.yaml -o report/\n  skyfold report rig.yaml -o report/ --json > figures.json')
     .action(async (rigPath: string, opts: { output: string; rays: number; json?: boolean }) => {
-      const { rig, warnings } = loadRig(rigPath);
-      warnings.forEach(warn);
+      const rig = readRig(rigPath);
       if (opts.rays < 1000 || opts.rays > 2_000_000) throw new UserError(`--rays: expected a number from 1000 to 2000000, got ${opts.rays}`);
       const analysis = analyzeRig(rig, { vertices: opts.rays });
       const pics = await reportPictures(analysis);
@@ -69,7 +61,7 @@ export function registerReport(program: Command): void {
         for (const [name, img, alt, caption] of items) {
           if (!img) continue;
           const svg = 'svg' in img ? img.svg : undefined;
-          const png = svg === undefined ? await encodePng(img as RasterImage) : await svgToPng(svg);
+          const png = svg === undefined ? await encodePng({ ...(img as RasterImage), channels: 4 }, 9) : await svgToPng(svg);
           const path = join(opts.output, name);
           writeFileAtomic(path, png);
           files.push(path);

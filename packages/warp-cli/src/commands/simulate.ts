@@ -1,13 +1,12 @@
 /** `skyfold simulate`: what the audience would see of a warped frame, as a dome master. */
 import { Option, type Command } from 'commander';
 import { remap, simulationMap } from '@skyfold/warp-core';
-import { loadRig } from '../io/document-file.js';
+import { readRig } from '../io/document-file.js';
+import { decodeImage, encodeImage, FrameError, formatOfPath } from '../io/image-codec.js';
+import { writeOutputFile } from '../io/output-file.js';
 import { UserError } from '../errors.js';
 import { printJson } from '../format.js';
-import { warn } from '../messages.js';
 import { parsePositiveInt } from '../options.js';
-import { decodeFrame, encodeFrame, FrameError, formatOfPath } from '../warp/image-io.js';
-import { writeFileAtomic } from './bake.js';
 
 export function registerSimulate(program: Command): void {
   program
@@ -21,13 +20,12 @@ export function registerSimulate(program: Command): void {
     .option('--json', 'print a JSON summary')
     .addHelpText('after', '\nExamples:\n  skyfold simulate rig.yaml warped/frame_0001.png -o seen.png\n  skyfold simulate rig.yaml warped/frame_0001.png -o seen.png --size 2048 --brightness none')
     .action(async (rigPath: string, warpedPath: string, opts: { output: string; size: number; brightness: 'physical' | 'none'; json?: boolean }) => {
-      const { rig, warnings } = loadRig(rigPath);
-      warnings.forEach(warn);
+      const rig = readRig(rigPath);
       const format = formatOfPath(opts.output);
       if (!format) throw new UserError(`${opts.output}: expected an image file name ending in .png, .jpg, .tif or .webp`);
       let frame;
       try {
-        frame = await decodeFrame(warpedPath);
+        frame = await decodeImage(warpedPath);
       } catch (e) {
         if (e instanceof FrameError) throw new UserError(`${warpedPath}: ${e.message}`);
         throw e;
@@ -36,7 +34,7 @@ export function registerSimulate(program: Command): void {
       if (frame.width !== W || frame.height !== H) throw new UserError(`${warpedPath}: is ${frame.width}x${frame.height}; the rig's projector is ${W}x${H}`);
       const map = simulationMap(rig, opts.size, { brightness: opts.brightness });
       const seen = remap(frame, map, { filter: 'bilinear' });
-      writeFileAtomic(opts.output, await encodeFrame(seen, { format }));
+      writeOutputFile(opts.output, await encodeImage(seen, { format }));
       let covered = 0;
       let inside = 0;
       for (let k = 0; k < map.gain.length; k++) {

@@ -5,13 +5,12 @@ import { availableParallelism, hostname } from 'node:os';
 import { basename, dirname, join, resolve } from 'node:path';
 import { InvalidArgumentError, Option, type Command } from 'commander';
 import { BAKE_DEFAULTS, REMAP_DEFAULTS, type RemapFilter, type RemapMap } from '@skyfold/warp-core';
-import sharp from 'sharp';
 import { UserError } from '../errors.js';
 import { printJson } from '../format.js';
 import { info } from '../messages.js';
 import { parseNumberIn, parsePositiveInt } from '../options.js';
 import { VERSION } from '../version.js';
-import { DEFAULT_MAX_PIXELS, FRAME_EXTENSION, FRAME_FORMATS, formatOfPath, type FrameFormat } from '../warp/image-io.js';
+import { DEFAULT_MAX_PIXELS, FRAME_EXTENSION, FRAME_FORMATS, formatOfPath, readImageSize, type FrameFormat } from '../io/image-codec.js';
 import { expandInputs, parseFrameRange, parseShard, selectFrames, type Frame } from '../warp/inputs.js';
 import { runFrameJob, type FrameJob, type FrameOutcome, type WarpSettings } from '../warp/job.js';
 import { Manifest } from '../warp/manifest.js';
@@ -175,15 +174,8 @@ async function warpFrames(map: MapSource, mapSettings: MapSettings, inputs: stri
     // head of a show fails alone
     const sizes = new Map<string, number>();
     for (const j of jobs) {
-      try {
-        const m = await sharp(j.input, { limitInputPixels: false }).metadata();
-        if (m.width && m.height) {
-          const key = `${m.width}x${m.height}`;
-          sizes.set(key, (sizes.get(key) ?? 0) + 1);
-        }
-      } catch {
-        // unreadable: reported when its turn comes
-      }
+      const wh = await readImageSize(j.input); // unreadable: reported when its turn comes
+      if (wh) sizes.set(wh.join('x'), (sizes.get(wh.join('x')) ?? 0) + 1);
     }
     let size: [number, number] | undefined;
     let best = 0;

@@ -36,7 +36,7 @@ import { strToU8, strFromU8, unzipSync, zipSync } from 'fflate';
 import sharp from 'sharp';
 import type { WarpMesh } from '@skyfold/warp-core';
 import { decodePfm, encodePfm } from './pfm.js';
-import { encodePng16 } from './png16.js';
+import { encodePng } from '../io/image-codec.js';
 
 export interface MpcdiOptions {
   /** Buffer id (default "skyfold"). */
@@ -135,9 +135,7 @@ async function encodeAlphaMap(mesh: WarpMesh, width: number, height: number, bit
       out[y * width + x] = Math.round(Math.min(1, Math.max(0, a)) * max);
     }
   }
-  if (out instanceof Uint16Array) return encodePng16(out, width, height, 1);
-  const png = await sharp(out, { raw: { width, height, channels: 1 } }).toColorspace('b-w').png({ compressionLevel: 9 }).toBuffer();
-  return new Uint8Array(png.buffer, png.byteOffset, png.byteLength);
+  return encodePng({ width, height, channels: 1, data: out }, 9);
 }
 
 export interface MpcdiContents {

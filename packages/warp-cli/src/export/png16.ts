@@ -10,20 +10,12 @@
  */
 import sharp from 'sharp';
 import { createMesh, type WarpMesh } from '@skyfold/warp-core';
+import { encodePng } from '../io/image-codec.js';
 
 const MAX16 = 65535;
 
 function to16(x: number): number {
   return Math.round(Math.min(1, Math.max(0, x)) * MAX16);
-}
-
-/** Encodes 16-bit samples (interleaved, top row first) as a 16-bit PNG: 1 channel = grey, 4 = RGBA. */
-export async function encodePng16(data: Uint16Array, width: number, height: number, channels: 1 | 4): Promise<Uint8Array> {
-  const png = await sharp(data, { raw: { width, height, channels, premultiplied: false } })
-    .toColorspace(channels === 1 ? 'grey16' : 'rgb16')
-    .png({ compressionLevel: 9 })
-    .toBuffer();
-  return new Uint8Array(png.buffer, png.byteOffset, png.byteLength);
 }
 
 /** Decodes a PNG to 16-bit samples; throws unless it really is 16 bits per sample. */
@@ -48,7 +40,7 @@ export async function writeMapPng(mesh: WarpMesh): Promise<Uint8Array> {
     data[i * 4 + 2] = to16(mesh.brightness[i]);
     data[i * 4 + 3] = to16(mesh.mask[i]);
   }
-  return encodePng16(data, mesh.cols, mesh.rows, 4);
+  return encodePng({ width: mesh.cols, height: mesh.rows, channels: 4, data }, 9);
 }
 
 export interface ReadMapPngOptions {

@@ -3,6 +3,7 @@ import { readFileSync } from 'node:fs';
 import { parseDocument } from 'yaml';
 import { RigError, rigFromDocument, rigWarnings, type Rig } from '@skyfold/warp-core';
 import { UserError } from '../errors.js';
+import { warn } from '../messages.js';
 import { readDomeMesh } from './dome-mesh-file.js';
 
 function lineCol(text: string, pos: number): [number, number] {
@@ -41,13 +42,40 @@ export function parseDocumentText(text: string, label: string): unknown {
   return doc.toJS();
 }
 
+function readFailure(path: string, what: string, e: unknown): UserError {
+  const code = (e as NodeJS.ErrnoException).code;
+  const why = code === 'ENOENT' ? 'no such file' : code === 'EISDIR' ? 'is a folder, not a file' : code === 'EACCES' ? 'permission denied' : (e as Error).message;
+  return new UserError(`${path}: cannot read the ${what}: ${why}`);
+}
+
 export function readTextFile(path: string, what: string): string {
   try {
     return readFileSync(path, 'utf8');
   } catch (e) {
-    const code = (e as NodeJS.ErrnoException).code;
-    const why = code === 'ENOENT' ? 'no such file' : code === 'EISDIR' ? 'is a folder, not a file' : code === 'EACCES' ? 'permission denied' : (e as Error).message;
-    throw new UserError(`${path}: cannot read the ${what}: ${why}`);
+    throw readFailure(path, what, e);
+  }
+}
+
+export function readBinaryFile(path: string, what: string): Uint8Array {
+  try {
+    const bytes = readFileSync(path);
+    return new Uint8Array(bytes.buffer, bytes.byteOffset, bytes.byteLength);
+  } catch (e) {
+    throw readFailure(path, what, e);
+  }
+}
+
+/**
+ * Reads, parses and checks a document file (`what` names it in errors: "rig file"); every failure,
+ * from a missing file to the core's RigError naming a field, is a one-line UserError naming the file.
+ */
+export function readDocumentFile<T>(path: string, what: string, fromDocument: (document: unknown) => T): { value: T; document: unknown } {
+  const document = parseDocumentText(readTextFile(path, what), path);
+  try {
+    return { value: fromDocument(document), document };
+  } catch (e) {
+    if (e instanceof RigError) throw new UserError(`${path}: ${e.message}`);
+    throw e;
   }
 }
 
@@ -61,13 +89,13 @@ export interface LoadedRig {
 
 /** Reads, parses and validates a rig file; every failure is a one-line UserError naming the file and field. */
 export function loadRig(path: string): LoadedRig {
-  const text = readTextFile(path, 'rig file');
-  const document = parseDocumentText(text, path);
-  try {
-    const rig = rigFromDocument(document, { loadMesh: (file) => readDomeMesh(path, file) });
-    return { rig, document, warnings: rigWarnings(rig).map((w) => `${path}: ${w}`), path };
-  } catch (e) {
-    if (e instanceof RigError) throw new UserError(`${path}: ${e.message}`);
-    throw e;
-  }
+  const { value: rig, document } = readDocumentFile(path, 'rig file', (document) => rigFromDocument(document, { loadMesh: (file) => readDomeMesh(path, file) }));
+  return { rig, document, warnings: rigWarnings(rig).map((w) => `${path}: ${w}`), path };
+}
+
+/** The rig file a command was given: loaded as {@link loadRig} does, its warnings printed to standard error. */
+export function readRig(path: string): Rig {
+  const loaded = loadRig(path);
+  loaded.warnings.forEach(warn);
+  return loaded.rig;
 }

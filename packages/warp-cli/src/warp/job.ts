@@ -1,7 +1,7 @@
 /** One frame's work, shared by the worker threads and the in-process path. */
-import { renameSync, rmSync, writeFileSync } from 'node:fs';
 import { createImageLike, remap, type ImageBuffer, type RemapFilter, type RemapMap } from '@skyfold/warp-core';
-import { decodeFrame, encodeFrame, FrameError, type EncodeOptions } from './image-io.js';
+import { decodeImage, encodeImage, FrameError, type EncodeOptions } from '../io/image-codec.js';
+import { writeFileAtomic } from '../io/output-file.js';
 
 export interface WarpSettings {
   filter: RemapFilter;
@@ -26,7 +26,7 @@ export type FrameOutcome = { id: number; ok: true; ms: number } | { id: number; 
 export async function runFrameJob(job: FrameJob, map: RemapMap, s: WarpSettings, scratch: { out?: ImageBuffer }): Promise<FrameOutcome> {
   const t0 = performance.now();
   try {
-    const src = await decodeFrame(job.input, s.maxPixels);
+    const src = await decodeImage(job.input, s.maxPixels);
     if (src.width !== s.sourceSize[0] || src.height !== s.sourceSize[1]) {
       throw new FrameError(`wrong size: ${src.width}x${src.height}, expected ${s.sourceSize[0]}x${s.sourceSize[1]} like the first frame`);
     }
@@ -35,12 +35,9 @@ export async function runFrameJob(job: FrameJob, map: RemapMap, s: WarpSettings,
       out = scratch.out = createImageLike(src, map.width, map.height);
     }
     remap(src, map, { filter: s.filter, out });
-    const bytes = await encodeFrame(out, { ...s.encode, format: job.format });
-    writeFileSync(job.temp, bytes);
-    renameSync(job.temp, job.output);
+    writeFileAtomic(job.output, await encodeImage(out, { ...s.encode, format: job.format }), job.temp);
     return { id: job.id, ok: true, ms: performance.now() - t0 };
   } catch (e) {
-    rmSync(job.temp, { force: true });
     const reason = e instanceof FrameError ? e.message : `failed: ${(e as Error)?.message?.split('\n')[0] ?? String(e)}`;
     return { id: job.id, ok: false, reason };
   }

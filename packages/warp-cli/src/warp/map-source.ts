@@ -1,11 +1,9 @@
 /** Where a warp's map comes from: an exact per-pixel trace of a rig, or a baked mesh (.glb). */
 import { createHash } from 'node:crypto';
-import { readFileSync } from 'node:fs';
 import { BAKE_DEFAULTS, pixelMapFromMesh, pixelMapFromRig, rigToDocument, type RemapMap, type SourceOrientation, type WarpMesh, type Rig } from '@skyfold/warp-core';
-import { loadRig } from '../io/document-file.js';
+import { readBinaryFile, readRig } from '../io/document-file.js';
 import { UserError } from '../errors.js';
 import { readGlb } from '../export/glb.js';
-import { warn } from '../messages.js';
 
 export interface MapSettings extends SourceOrientation {
   brightness?: number;
@@ -27,15 +25,10 @@ export interface MapSource {
 
 export async function loadMapSource(path: string): Promise<MapSource> {
   if (path.toLowerCase().endsWith('.glb')) {
-    let bytes: Buffer;
-    try {
-      bytes = readFileSync(path);
-    } catch (e) {
-      throw new UserError(`${path}: cannot read the mesh: ${(e as NodeJS.ErrnoException).code === 'ENOENT' ? 'no such file' : (e as Error).message}`);
-    }
+    const bytes = readBinaryFile(path, 'mesh');
     let mesh: WarpMesh;
     try {
-      mesh = await readGlb(new Uint8Array(bytes.buffer, bytes.byteOffset, bytes.byteLength));
+      mesh = await readGlb(bytes);
     } catch (e) {
       throw new UserError(`${path}: not a skyfold warp mesh: ${(e as Error).message.split('\n')[0]}`);
     }
@@ -57,8 +50,7 @@ export async function loadMapSource(path: string): Promise<MapSource> {
       },
     };
   }
-  const { rig, warnings } = loadRig(path);
-  warnings.forEach(warn);
+  const rig = readRig(path);
   return {
     kind: 'rig',
     width: rig.projector.resolution[0],
