@@ -3,7 +3,7 @@
  * master's orientation, the projector frame coloured by what each pixel's light does, a side view of
  * the set-up with the eye-height bands, and a plan view of where light meets eye height.
  */
-import { allocGridOutput, bodyCorners, DEG, EYE_BANDS, Fate, fateOf, formatLength, HitKind, landing, pixelToRay, RAD, type RigAnalysis, Sorted, type Vec3 } from '@skyfold/warp-core';
+import { allocGridOutput, bodyCorners, DEG, EYE_BANDS, Fate, fateOf, formatLength, HitKind, landing, type LengthUnit, type MirrorModel, pixelToRay, RAD, type RigAnalysis, Sorted, type Vec3 } from '@skyfold/warp-core';
 import { drawFisheyeMap, fisheyeLookup } from './fisheye-map.js';
 import type { Picture } from './svg.js';
 import { oklchToSrgb8, PALETTE, type Rgb8 } from './colormap.js';
@@ -115,13 +115,27 @@ export function drawFrameMap(a: RigAnalysis, width = 640): RasterImage {
   return img;
 }
 
-/** A side view: dome, floor, eye-height bands, mirror with its cap, projector and a fan of rays. */
-export function drawSideView(a: RigAnalysis, width = 960, height = 600): RasterImage {
-  const tracer = a.sample.tracer;
-  const rig = tracer.rig;
+/** How the side view maps the world to the picture: a vertical section through the mirror and the lens. */
+interface SideFrame {
+  width: number;
+  height: number;
+  /** Unit horizontal direction of the section, from the mirror toward the projector. */
+  hx: number;
+  hy: number;
+  /** Picture pixels per metre, and the picture position of the dome's centre. */
+  scale: number;
+  cx: number;
+  cy: number;
+  /** The lowest height drawn: the floor, or a quarter radius below the springline. */
+  bottom: number;
+  X: (p: readonly number[]) => number;
+  Y: (z: number) => number;
+}
+
+function sideFrame(a: RigAnalysis, width: number, height: number): SideFrame {
+  const rig = a.sample.tracer.rig;
   const R = rig.dome.radius;
-  const floor = rig.dome.floor;
-  const P = tracer.frame.origin;
+  const P = a.sample.tracer.frame.origin;
   const C = rig.mirror.center;
   // the horizontal axis runs from the mirror toward the projector, so the beam lies in the picture
   let hx = P[0] - C[0];
@@ -134,33 +148,37 @@ export function drawSideView(a: RigAnalysis, width = 960, height = 600): RasterI
   }
   hx /= hl;
   hy /= hl;
-  const img = createImage(width, height, PAPER);
-  const bottom = -(floor ?? 0.25 * R);
+  const bottom = -(rig.dome.floor ?? 0.25 * R);
   const marginX = 190;
   const top = 100;
   const scale = Math.min((width - 2 * marginX) / (2 * R), (height - top - 70) / (R - bottom));
   const cx = width / 2;
   const cy = top + R * scale;
-  const X = (p: readonly number[]) => cx + scale * (p[0] * hx + p[1] * hy);
-  const Y = (z: number) => cy - scale * z;
-  // eye-height bands
-  if (floor !== undefined) {
-    const tints: Rgb8[] = [oklchToSrgb8(0.93, 0.04, 80), oklchToSrgb8(0.91, 0.05, 60), oklchToSrgb8(0.9, 0.05, 30)];
-    EYE_BANDS.forEach((b, q) => {
-      const z0 = b.from - floor;
-      const z1 = b.to - floor;
-      const w0 = Math.sqrt(Math.max(0, R * R - z0 * z0));
-      const w1 = Math.sqrt(Math.max(0, R * R - z1 * z1));
-      fillPolygon(img, [cx - w0 * scale, Y(z0), cx + w0 * scale, Y(z0), cx + w1 * scale, Y(z1), cx - w1 * scale, Y(z1)], tints[q]);
-      drawLabel(img, `${b.label}`, cx - R * scale - 10, Y((z0 + z1) / 2) - 6, INK, { align: 'right', baseline: 'middle' });
-      drawLabel(img, `eyes ${b.from}-${b.to} m`, cx - R * scale - 10, Y((z0 + z1) / 2) + 7, FAINT, { align: 'right', baseline: 'middle' });
-    });
-  }
-  // floor, springline, dome and its continuation
+  return { width, height, hx, hy, scale, cx, cy, bottom, X: (p) => cx + scale * (p[0] * hx + p[1] * hy), Y: (z) => cy - scale * z };
+}
+
+/** The eye-height bands as tinted slices of the dome, labelled on the left. */
+function drawSideBands(img: RasterImage, f: SideFrame, R: number, floor: number): void {
+  const tints: Rgb8[] = [oklchToSrgb8(0.93, 0.04, 80), oklchToSrgb8(0.91, 0.05, 60), oklchToSrgb8(0.9, 0.05, 30)];
+  const { cx, scale, Y } = f;
+  EYE_BANDS.forEach((b, q) => {
+    const z0 = b.from - floor;
+    const z1 = b.to - floor;
+    const w0 = Math.sqrt(Math.max(0, R * R - z0 * z0));
+    const w1 = Math.sqrt(Math.max(0, R * R - z1 * z1));
+    fillPolygon(img, [cx - w0 * scale, Y(z0), cx + w0 * scale, Y(z0), cx + w1 * scale, Y(z1), cx - w1 * scale, Y(z1)], tints[q]);
+    drawLabel(img, `${b.label}`, cx - R * scale - 10, Y((z0 + z1) / 2) - 6, INK, { align: 'right', baseline: 'middle' });
+    drawLabel(img, `eyes ${b.from}-${b.to} m`, cx - R * scale - 10, Y((z0 + z1) / 2) + 7, FAINT, { align: 'right', baseline: 'middle' });
+  });
+}
+
+/** The floor (when known), the springline, the dome's arc and its dashed continuation below. */
+function drawSideDome(img: RasterImage, f: SideFrame, R: number, floor: number | undefined, units: LengthUnit): void {
+  const { cx, scale, Y, bottom } = f;
   const fw = Math.sqrt(Math.max(0, R * R - bottom * bottom));
   if (floor !== undefined) {
     fillRect(img, cx - fw * scale - 20, Y(bottom), 2 * fw * scale + 40, 6, [200, 196, 188]);
-    drawLabel(img, `floor, ${formatLength(floor, rig.units, 2)} below the springline`, cx + fw * scale - 4, Y(bottom) + 12, FAINT, { align: 'right' });
+    drawLabel(img, `floor, ${formatLength(floor, units, 2)} below the springline`, cx + fw * scale - 4, Y(bottom) + 12, FAINT, { align: 'right' });
   }
   drawLine(img, cx - R * scale, Y(0), cx + R * scale, Y(0), FAINT, 1, 1, [5, 5]);
   const arc: number[] = [];
@@ -175,47 +193,69 @@ export function drawSideView(a: RigAnalysis, width = 960, height = 600): RasterI
     }
     drawPolyline(img, pts, INK, 1.5, 1, [6, 4]);
   }
-  // the fan of rays down the middle column of the frame
-  const [W, H] = rig.projector.resolution;
+}
+
+/** Rays in the side view: down the middle column of the frame. */
+const SIDE_RAYS = 33;
+
+function sideRayRow(q: number, H: number): number {
+  return ((q + 0.5) * H) / SIDE_RAYS;
+}
+
+/** The fan of rays down the middle column of the frame, coloured by where each one's light goes. */
+function drawSideRays(img: RasterImage, f: SideFrame, a: RigAnalysis): void {
+  const tracer = a.sample.tracer;
+  const { dome, projector } = tracer.rig;
+  const [W, H] = projector.resolution;
+  const P = tracer.frame.origin;
+  const { X, Y } = f;
   const ray: Vec3 = [0, 0, 0];
-  const nRays = 33;
-  for (let q = 0; q < nRays; q++) {
-    const y = ((q + 0.5) * H) / nRays;
+  for (let q = 0; q < SIDE_RAYS; q++) {
+    const y = sideRayRow(q, H);
     const hit = tracer.pixel(W / 2, y);
     pixelToRay(ray, tracer.frame, W / 2, y);
     if (hit.kind === 'mirror-miss') {
-      const l = landing(P, ray, R, floor);
+      const l = landing(P, ray, dome.radius, dome.floor);
       drawLine(img, X(P), Y(P[2]), X(l.point), Y(l.point[2]), PALETTE.mirrorMiss, 1, 0.5, [4, 4]);
       continue;
     }
     const M = hit.mirrorPoint;
-    const l = landing(M, hit.reflected, R, floor);
-    const col = hit.kind === 'open' ? PALETTE.belowHorizon : hit.kind === 'dome' ? (hit.fisheye[0] - 0.5) ** 2 + (hit.fisheye[1] - 0.5) ** 2 <= 0.25 ? PALETTE.litDark : PALETTE.outsideContent : PALETTE.belowHorizon;
+    const l = landing(M, hit.reflected, dome.radius, dome.floor);
+    const inContent = hit.kind === 'dome' && (hit.fisheye[0] - 0.5) ** 2 + (hit.fisheye[1] - 0.5) ** 2 <= 0.25;
+    const col = hit.kind !== 'dome' ? PALETTE.belowHorizon : inContent ? PALETTE.litDark : PALETTE.outsideContent;
     drawLine(img, X(M), Y(M[2]), X(l.point), Y(l.point[2]), col, 1.2, 0.8);
     drawLine(img, X(P), Y(P[2]), X(M), Y(M[2]), PALETTE.beam, 1.5, 0.9);
   }
-  // the incoming beam where it runs at eye height, in the caution colour
-  if (floor !== undefined) {
-    for (let q = 0; q < nRays; q++) {
-      const y = ((q + 0.5) * H) / nRays;
-      const hit = tracer.pixel(W / 2, y);
-      if (hit.kind === 'mirror-miss') continue;
-      const M = hit.mirrorPoint;
-      for (const b of EYE_BANDS) {
-        const z0 = b.from - floor;
-        const z1 = b.to - floor;
-        const steps = 60;
-        for (let s = 0; s < steps; s++) {
-          const p0 = [0, 1, 2].map((i) => P[i] + ((M[i] - P[i]) * s) / steps);
-          const p1 = [0, 1, 2].map((i) => P[i] + ((M[i] - P[i]) * (s + 1)) / steps);
-          const zm = (p0[2] + p1[2]) / 2;
-          if (zm >= z0 && zm <= z1) drawLine(img, X(p0), Y(p0[2]), X(p1), Y(p1[2]), PALETTE.caution, 3, 0.9);
-        }
+}
+
+/** The incoming beam, overdrawn in the caution colour where it runs at eye height. */
+function drawSideBeamAtEyeHeight(img: RasterImage, f: SideFrame, a: RigAnalysis, floor: number): void {
+  const tracer = a.sample.tracer;
+  const [W, H] = tracer.rig.projector.resolution;
+  const P = tracer.frame.origin;
+  const { X, Y } = f;
+  const steps = 60;
+  for (let q = 0; q < SIDE_RAYS; q++) {
+    const hit = tracer.pixel(W / 2, sideRayRow(q, H));
+    if (hit.kind === 'mirror-miss') continue;
+    const M = hit.mirrorPoint;
+    for (const b of EYE_BANDS) {
+      const z0 = b.from - floor;
+      const z1 = b.to - floor;
+      for (let s = 0; s < steps; s++) {
+        const p0 = [0, 1, 2].map((i) => P[i] + ((M[i] - P[i]) * s) / steps);
+        const p1 = [0, 1, 2].map((i) => P[i] + ((M[i] - P[i]) * (s + 1)) / steps);
+        const zm = (p0[2] + p1[2]) / 2;
+        if (zm >= z0 && zm <= z1) drawLine(img, X(p0), Y(p0[2]), X(p1), Y(p1[2]), PALETTE.caution, 3, 0.9);
       }
     }
   }
-  // the mirror: the whole sphere's section thin, the reflective cap thick
-  const m = rig.mirror;
+}
+
+/** The mirror: the whole sphere's section thin and dashed, the reflective cap thick. */
+function drawSideMirror(img: RasterImage, f: SideFrame, m: MirrorModel): void {
+  const { X, Y, hx, hy } = f;
+  const C = m.center;
   const sec: number[] = [];
   const cap: number[][] = [];
   let run: number[] = [];
@@ -234,27 +274,36 @@ export function drawSideView(a: RigAnalysis, width = 960, height = 600): RasterI
   drawPolyline(img, sec, FAINT, 1, 0.8, [3, 3]);
   for (const c of cap) drawPolyline(img, c, [70, 90, 140], 3.5);
   drawLabel(img, 'mirror', X(C), Y(C[2] - m.radius) + 10, INK, { align: 'center', halo: PAPER });
-  // the projector: its body box if known, else a small marker
-  const body = rig.projector.body;
+}
+
+/** The projector: its body's outline if the rig gives one, else a short stub behind the lens. */
+function drawSideProjector(img: RasterImage, f: SideFrame, a: RigAnalysis): void {
+  const tracer = a.sample.tracer;
+  const P = tracer.frame.origin;
+  const { X, Y } = f;
+  const body = tracer.rig.projector.body;
   if (body) {
     const corners = bodyCorners(body, tracer.frame).map((p) => [X(p), Y(p[2])]);
-    const hull = convexHull(corners);
-    fillPolygon(img, hull.flat(), [90, 94, 104], 0.85);
+    fillPolygon(img, convexHull(corners).flat(), [90, 94, 104], 0.85);
   } else {
-    const f = tracer.frame.forward;
-    const back = [P[0] - 0.25 * f[0], P[1] - 0.25 * f[1], P[2] - 0.25 * f[2]];
+    const fw = tracer.frame.forward;
+    const back = [P[0] - 0.25 * fw[0], P[1] - 0.25 * fw[1], P[2] - 0.25 * fw[2]];
     drawLine(img, X(P), Y(P[2]), X(back), Y(back[2]), [90, 94, 104], 10);
   }
   fillCircle(img, X(P), Y(P[2]), 4, PALETTE.caution);
   drawLabel(img, body ? 'projector' : 'projector (body not given)', X(P), Y(P[2]) + 14, INK, { align: 'center', halo: PAPER });
-  // end labels and a metre scale
+}
+
+/** The azimuths at the section's two ends, a one-metre scale bar, the title and the legend. */
+function drawSideAnnotations(img: RasterImage, f: SideFrame, R: number, units: LengthUnit): void {
+  const { cx, scale, Y, hx, hy, width, height } = f;
   const azFront = ((Math.atan2(hx, hy) * RAD) + 360) % 360;
   drawLabel(img, `azimuth ${azFront.toFixed(0)}°`, cx + R * scale + 10, Y(0), FAINT, { baseline: 'middle' });
   drawLabel(img, `azimuth ${((azFront + 180) % 360).toFixed(0)}°`, cx - R * scale - 10, Y(0), FAINT, { align: 'right', baseline: 'middle' });
   const sbx = width - 40 - scale;
   const sby = height - 26;
   fillRect(img, sbx, sby, scale, 4, INK);
-  drawLabel(img, rig.units === 'ft' || rig.units === 'in' ? `1 m = ${formatLength(1, rig.units)}` : '1 m', sbx + scale / 2, sby - 14, INK, { align: 'center' });
+  drawLabel(img, units === 'ft' || units === 'in' ? `1 m = ${formatLength(1, units)}` : '1 m', sbx + scale / 2, sby - 14, INK, { align: 'center' });
   drawLabel(img, 'Side view of the set-up', 24, 22, INK, { scale: 2 });
   drawLabel(img, 'Section through the mirror and the lens; rays down the middle of the frame. Beam at eye height in red.', 24, 52, FAINT);
   const legend: [Rgb8, string][] = [
@@ -270,6 +319,22 @@ export function drawSideView(a: RigAnalysis, width = 960, height = 600): RasterI
     drawLabel(img, t, lx + 24, height - 30, INK);
     lx += 24 + labelWidth(t) + 22;
   }
+}
+
+/** A side view: dome, floor, eye-height bands, mirror with its cap, projector and a fan of rays. */
+export function drawSideView(a: RigAnalysis, width = 960, height = 600): RasterImage {
+  const rig = a.sample.tracer.rig;
+  const R = rig.dome.radius;
+  const floor = rig.dome.floor;
+  const f = sideFrame(a, width, height);
+  const img = createImage(width, height, PAPER);
+  if (floor !== undefined) drawSideBands(img, f, R, floor);
+  drawSideDome(img, f, R, floor, rig.units);
+  drawSideRays(img, f, a);
+  if (floor !== undefined) drawSideBeamAtEyeHeight(img, f, a, floor);
+  drawSideMirror(img, f, rig.mirror);
+  drawSideProjector(img, f, a);
+  drawSideAnnotations(img, f, R, rig.units);
   return img;
 }
 

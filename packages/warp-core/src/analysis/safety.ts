@@ -145,156 +145,216 @@ function clipZ(a: ReadonlyVec3, b: ReadonlyVec3, lo: number, hi: number): [numbe
   return t0 <= t1 ? [t0, t1] : null;
 }
 
+/** Cells per side of the plan-view rasters. */
+const PLAN_CELLS = 120;
+
+/** A plan-view raster n × n over [−R, R]², row 0 at +y. */
+interface PlanGrid {
+  n: number;
+  extent: number;
+  cells: Uint8Array;
+}
+
+function planGrid(extent: number): PlanGrid {
+  return { n: PLAN_CELLS, extent, cells: new Uint8Array(PLAN_CELLS * PLAN_CELLS) };
+}
+
+/** The smallest and largest of the values seen so far (empty: min = Infinity). */
+class Span {
+  min = Infinity;
+  max = -Infinity;
+  add(v: number): void {
+    this.min = Math.min(this.min, v);
+    this.max = Math.max(this.max, v);
+  }
+  get empty(): boolean {
+    return !Number.isFinite(this.min);
+  }
+  rounded(): [number, number] | null {
+    return this.empty ? null : [r(this.min, 3)!, r(this.max, 3)!];
+  }
+}
+
+/** Marks the plan-view cells under the part [t0, t1] of the segment a → b, calling `visit` at each step. */
+function markSegment(grid: PlanGrid, a: ReadonlyVec3, b: ReadonlyVec3, t0: number, t1: number, visit: (x: number, y: number) => void): void {
+  const { n, extent: R } = grid;
+  const cell = (2 * R) / n;
+  const ax = a[0] + t0 * (b[0] - a[0]);
+  const ay = a[1] + t0 * (b[1] - a[1]);
+  const bx = a[0] + t1 * (b[0] - a[0]);
+  const by = a[1] + t1 * (b[1] - a[1]);
+  const steps = Math.ceil(Math.hypot(bx - ax, by - ay) / cell) + 1;
+  for (let q = 0; q <= steps; q++) {
+    const x = ax + ((bx - ax) * q) / steps;
+    const y = ay + ((by - ay) * q) / steps;
+    visit(x, y);
+    const i = Math.floor((x + R) / cell);
+    const j = Math.floor((R - y) / cell);
+    if (i >= 0 && j >= 0 && i < n && j < n) grid.cells[j * n + i] = 1;
+  }
+}
+
+/** Where the direct beam (lens to mirror, and past a missed mirror) runs between heights lo and hi. */
+interface BeamCrossings {
+  direct: PlanGrid;
+  /** Horizontal distances from the lens, and plan-view x and y, of the beam to the mirror in the band. */
+  distance: Span;
+  x: Span;
+  y: Span;
+  /** Horizontal distances from the lens of the beam that misses the mirror, in the band. */
+  pastMirror: Span;
+  /** Azimuths (degrees) where lit picture meets the dome or wall inside the band. */
+  wallAzimuths: number[];
+}
+
+function beamCrossings(s: FrameSample, landings: ReturnType<typeof strayLandings>, lo: number, hi: number): BeamCrossings {
+  const P = s.tracer.frame.origin;
+  const c: BeamCrossings = { direct: planGrid(s.tracer.rig.dome.radius), distance: new Span(), x: new Span(), y: new Span(), pastMirror: new Span(), wallAzimuths: [] };
+  const visitPast = (x: number, y: number) => c.pastMirror.add(Math.hypot(x - P[0], y - P[1]));
+  const visitDirect = (x: number, y: number) => {
+    c.distance.add(Math.hypot(x - P[0], y - P[1]));
+    c.x.add(x);
+    c.y.add(y);
+  };
+  // every other vertex each way is plenty for a plan-view raster of 4 cm cells
+  const stride = s.cols * s.rows > 40_000 ? 2 : 1;
+  for (let k = 0; k < s.fate.length; k++) {
+    if (stride > 1 && ((k % s.cols) % stride !== 0 || Math.floor(k / s.cols) % stride !== 0)) continue;
+    const fate = s.fate[k];
+    const l = landings[k];
+    if (fate === Fate.MirrorMiss) {
+      if (!l) continue;
+      const t = clipZ(P, l.point, lo, hi);
+      if (t) markSegment(c.direct, P, l.point, t[0], t[1], visitPast);
+      continue;
+    }
+    const X: Vec3 = [s.mirrorPoint[3 * k], s.mirrorPoint[3 * k + 1], s.mirrorPoint[3 * k + 2]];
+    const t = clipZ(P, X, lo, hi);
+    if (t) markSegment(c.direct, P, X, t[0], t[1], visitDirect);
+    // outside the content: blacked out by the mesh, and its black level is the spill figures' business
+    if (fate !== Fate.Lit) continue;
+    const end: ReadonlyVec3 = l ? l.point : [s.point[3 * k], s.point[3 * k + 1], s.point[3 * k + 2]];
+    if (end[2] >= lo && end[2] <= hi) c.wallAzimuths.push(azAltFromDirection([end[0], end[1], 0])[0] * RAD);
+  }
+  return c;
+}
+
+/** Where lit, reflected light passes between heights lo and hi, over the floor inside the wall. */
+interface ReflectedCrossings {
+  reflected: PlanGrid;
+  /** Share of the floor cells inside the wall at the band's middle height. */
+  floorShare: number | null;
+  /** Farthest horizontal distance from the mirror's centre, or null when none. */
+  reach: number | null;
+}
+
+function reflectedCrossings(s: FrameSample, lo: number, hi: number): ReflectedCrossings {
+  const R = s.tracer.rig.dome.radius;
+  const C = s.tracer.rig.mirror.center;
+  const grid = planGrid(R);
+  const { n } = grid;
+  const cell = (2 * R) / n;
+  const zMid = (lo + hi) / 2;
+  const wallR = Math.sqrt(Math.max(0, R * R - zMid * zMid));
+  let inside = 0;
+  let hit = 0;
+  let reach = -Infinity;
+  for (let j = 0; j < n; j++)
+    for (let i = 0; i < n; i++) {
+      const x = -R + (i + 0.5) * cell;
+      const y = R - (j + 0.5) * cell;
+      if (Math.hypot(x, y) > wallR) continue;
+      inside++;
+      // exact: does lit, reflected light pass through this point at any of three heights in the band?
+      if (![lo, zMid, hi].some((z) => reflectedThrough(s, [x, y, z]))) continue;
+      grid.cells[j * n + i] = 1;
+      hit++;
+      reach = Math.max(reach, Math.hypot(x - C[0], y - C[1]));
+    }
+  return { reflected: grid, floorShare: inside ? r(hit / inside, 3) : null, reach: hit ? Math.max(0, reach) : null };
+}
+
+function bandZone(band: EyeBand, beam: BeamCrossings, light: ReflectedCrossings): BandZone {
+  const crosses = !beam.distance.empty;
+  return {
+    name: band.name,
+    label: band.label,
+    from: band.from,
+    to: band.to,
+    directBeam: { crosses, distanceFromLens: beam.distance.rounded(), x: beam.x.rounded(), y: beam.y.rounded() },
+    pastMirror: { crosses: !beam.pastMirror.empty, distanceFromLens: beam.pastMirror.rounded() },
+    reflected: {
+      crosses: light.reach !== null,
+      floorShare: light.floorShare,
+      reachFromMirror: light.reach === null ? null : r(light.reach, 3),
+      wallAzimuths: beam.wallAzimuths.length ? (azimuthArc(beam.wallAzimuths)!.map((a) => r(a, 1)) as [number, number]) : null,
+    },
+  };
+}
+
+/** The findings for one eye-height band, lengths written by L. */
+function bandFindings(z: BandZone, band: EyeBand, L: (m: number) => string): Finding[] {
+  const findings: Finding[] = [];
+  const who = `people ${band.label} (${L(band.from)} to ${L(band.to)} above the floor)`;
+  if (z.directBeam.crosses) {
+    const [d0, d1] = z.directBeam.distanceFromLens!;
+    const [x0, x1] = z.directBeam.x!;
+    const [y0, y1] = z.directBeam.y!;
+    findings.push({
+      level: 'danger',
+      text: `The beam from the projector runs at the eye height of ${who} from ${L(d0)} to ${L(d1)} from the lens, over x ${L(x0)} to ${L(x1)}, y ${L(y0)} to ${L(y1)}. Nobody may sit, stand or walk there: rope the zone off or raise the beam.`,
+    });
+  }
+  if (z.pastMirror.crosses) {
+    const [d0, d1] = z.pastMirror.distanceFromLens!;
+    findings.push({
+      level: 'caution',
+      text: `Part of the frame misses the mirror and goes on at the eye height of ${who}, ${L(d0)} to ${L(d1)} from the lens. The warp mesh blacks it out, but the projector's start-up screen and menus are not warped: never stand behind the mirror, and keep the menus off during shows.`,
+    });
+  }
+  if (z.reflected.wallAzimuths) {
+    findings.push({
+      level: 'caution',
+      text: `The picture itself meets the dome at the eye height of ${who} ${describeArc(z.reflected.wallAzimuths)}: people there have the light in their eyes, and anyone who looks toward the mirror sees the lens's reflection. Seat people so that they face away from the mirror, or keep the lowest part of the picture dark.`,
+    });
+  } else if (z.reflected.crosses && (z.reflected.floorShare ?? 0) > 0) {
+    findings.push({
+      level: 'caution',
+      text: `Reflected light passes through the eye height of ${who} over ${((z.reflected.floorShare ?? 0) * 100).toFixed(0)}% of the floor, up to ${L(z.reflected.reachFromMirror ?? 0)} from the mirror: nobody should look toward the mirror from there.`,
+    });
+  }
+  return findings;
+}
+
+/** The one note a rig without dome.floor gets. */
+function floorUnknown(): { figures: SafetyFigures; zones: null } {
+  const findings: Finding[] = [{ level: 'note', text: 'dome.floor is not given, so eye heights cannot be placed: add how far the floor lies below the springline for the eye-height findings.' }];
+  return { figures: { floorKnown: false, lensHeight: null, mirrorHeight: null, bands: [], findings, cautions: STANDING_CAUTIONS, source: 'common practice' }, zones: null };
+}
+
 export function safetyFigures(s: FrameSample): { figures: SafetyFigures; zones: SafetyZones | null } {
   const rig = s.tracer.rig;
   const floor = rig.dome.floor;
+  if (floor === undefined) return floorUnknown();
   const L = (m: number) => formatLength(m, rig.units, 2);
-  const P = s.tracer.frame.origin;
-  const C = rig.mirror.center;
-  const findings: Finding[] = [];
-  if (floor === undefined) {
-    findings.push({ level: 'note', text: 'dome.floor is not given, so eye heights cannot be placed: add how far the floor lies below the springline for the eye-height findings.' });
-    return { figures: { floorKnown: false, lensHeight: null, mirrorHeight: null, bands: [], findings, cautions: STANDING_CAUTIONS, source: 'common practice' }, zones: null };
-  }
-  const R = rig.dome.radius;
-  const n = 120;
-  const cell = (2 * R) / n;
   const landings = strayLandings(s);
   const bands: BandZone[] = [];
-  const zones: SafetyZones = { n, extent: R, direct: [], reflected: [] };
-  const mark = (grid: Uint8Array, a: ReadonlyVec3, b: ReadonlyVec3, t0: number, t1: number, visit?: (x: number, y: number) => void) => {
-    const ax = a[0] + t0 * (b[0] - a[0]);
-    const ay = a[1] + t0 * (b[1] - a[1]);
-    const bx = a[0] + t1 * (b[0] - a[0]);
-    const by = a[1] + t1 * (b[1] - a[1]);
-    const steps = Math.ceil(Math.hypot(bx - ax, by - ay) / cell) + 1;
-    for (let q = 0; q <= steps; q++) {
-      const x = ax + ((bx - ax) * q) / steps;
-      const y = ay + ((by - ay) * q) / steps;
-      visit?.(x, y);
-      const i = Math.floor((x + R) / cell);
-      const j = Math.floor((R - y) / cell);
-      if (i >= 0 && j >= 0 && i < n && j < n) grid[j * n + i] = 1;
-    }
-  };
+  const findings: Finding[] = [];
+  const zones: SafetyZones = { n: PLAN_CELLS, extent: rig.dome.radius, direct: [], reflected: [] };
   for (const band of EYE_BANDS) {
+    // band heights from the springline, where the trace's z is measured
     const lo = band.from - floor;
     const hi = band.to - floor;
-    const direct = new Uint8Array(n * n);
-    const reflected = new Uint8Array(n * n);
-    let dMin = Infinity, dMax = -Infinity, xMin = Infinity, xMax = -Infinity, yMin = Infinity, yMax = -Infinity;
-    let pMin = Infinity, pMax = -Infinity;
-    const visitPast = (x: number, y: number) => {
-      const d = Math.hypot(x - P[0], y - P[1]);
-      pMin = Math.min(pMin, d);
-      pMax = Math.max(pMax, d);
-    };
-    let reach = 0;
-    let any = false;
-    const wallAz: number[] = [];
-    const visitDirect = (x: number, y: number) => {
-      const d = Math.hypot(x - P[0], y - P[1]);
-      dMin = Math.min(dMin, d);
-      dMax = Math.max(dMax, d);
-      xMin = Math.min(xMin, x);
-      xMax = Math.max(xMax, x);
-      yMin = Math.min(yMin, y);
-      yMax = Math.max(yMax, y);
-    };
-    // every other vertex each way is plenty for a plan-view raster of 4 cm cells
-    const stride = s.cols * s.rows > 40_000 ? 2 : 1;
-    for (let k = 0; k < s.fate.length; k++) {
-      if (stride > 1 && ((k % s.cols) % stride !== 0 || Math.floor(k / s.cols) % stride !== 0)) continue;
-      const fate = s.fate[k];
-      const l = landings[k];
-      if (fate === Fate.MirrorMiss) {
-        if (!l) continue;
-        const c = clipZ(P, l.point, lo, hi);
-        if (c) mark(direct, P, l.point, c[0], c[1], visitPast);
-        continue;
-      }
-      const X: [number, number, number] = [s.mirrorPoint[3 * k], s.mirrorPoint[3 * k + 1], s.mirrorPoint[3 * k + 2]];
-      const ci = clipZ(P, X, lo, hi);
-      if (ci) mark(direct, P, X, ci[0], ci[1], visitDirect);
-      if (fate === Fate.OutsideContent) continue; // blacked out by the mesh, and its black level is the spill figures' business
-      const end: ReadonlyVec3 = l ? l.point : [s.point[3 * k], s.point[3 * k + 1], s.point[3 * k + 2]];
-      if (fate === Fate.Shadow) continue;
-      if (end[2] >= lo && end[2] <= hi && fate === Fate.Lit) wallAz.push(azAltFromDirection([end[0], end[1], 0])[0] * RAD);
-    }
-    // share of the floor area inside the wall at the band's height
-    const zMid = (lo + hi) / 2;
-    const wallR = Math.sqrt(Math.max(0, R * R - zMid * zMid));
-    let inside = 0;
-    let hit = 0;
-    for (let j = 0; j < n; j++)
-      for (let i = 0; i < n; i++) {
-        const x = -R + (i + 0.5) * cell;
-        const y = R - (j + 0.5) * cell;
-        if (Math.hypot(x, y) > wallR) continue;
-        inside++;
-        // exact: does lit, reflected light pass through this point at any of three heights in the band?
-        if ([lo, (lo + hi) / 2, hi].some((z) => reflectedThrough(s, [x, y, z]))) {
-          reflected[j * n + i] = 1;
-          hit++;
-          any = true;
-          reach = Math.max(reach, Math.hypot(x - C[0], y - C[1]));
-        }
-      }
-    const crosses = Number.isFinite(dMin);
-    bands.push({
-      name: band.name,
-      label: band.label,
-      from: band.from,
-      to: band.to,
-      directBeam: {
-        crosses,
-        distanceFromLens: crosses ? [r(dMin, 3)!, r(dMax, 3)!] : null,
-        x: crosses ? [r(xMin, 3)!, r(xMax, 3)!] : null,
-        y: crosses ? [r(yMin, 3)!, r(yMax, 3)!] : null,
-      },
-      pastMirror: { crosses: Number.isFinite(pMin), distanceFromLens: Number.isFinite(pMin) ? [r(pMin, 3)!, r(pMax, 3)!] : null },
-      reflected: {
-        crosses: any,
-        floorShare: inside ? r(hit / inside, 3) : null,
-        reachFromMirror: any ? r(reach, 3) : null,
-        wallAzimuths: wallAz.length ? (azimuthArc(wallAz)!.map((a) => r(a, 1)) as [number, number]) : null,
-      },
-    });
-    zones.direct.push(direct);
-    zones.reflected.push(reflected);
+    const beam = beamCrossings(s, landings, lo, hi);
+    const light = reflectedCrossings(s, lo, hi);
+    const zone = bandZone(band, beam, light);
+    bands.push(zone);
+    findings.push(...bandFindings(zone, band, L));
+    zones.direct.push(beam.direct.cells);
+    zones.reflected.push(light.reflected.cells);
   }
-  const h = (z: number) => z + floor;
-  const range = (b: EyeBand) => `${L(b.from)} to ${L(b.to)} above the floor`;
-  for (const z of bands) {
-    const band = EYE_BANDS.find((b) => b.name === z.name)!;
-    if (z.directBeam.crosses) {
-      const [d0, d1] = z.directBeam.distanceFromLens!;
-      findings.push({
-        level: 'danger',
-        text: `The beam from the projector runs at the eye height of people ${band.label} (${range(band)}) from ${L(d0)} to ${L(d1)} from the lens, over x ${L(z.directBeam.x![0])} to ${L(z.directBeam.x![1])}, y ${L(z.directBeam.y![0])} to ${L(z.directBeam.y![1])}. Nobody may sit, stand or walk there: rope the zone off or raise the beam.`,
-      });
-    }
-    if (z.pastMirror.crosses) {
-      const [d0, d1] = z.pastMirror.distanceFromLens!;
-      findings.push({
-        level: 'caution',
-        text: `Part of the frame misses the mirror and goes on at the eye height of people ${band.label} (${range(band)}), ${L(d0)} to ${L(d1)} from the lens. The warp mesh blacks it out, but the projector's start-up screen and menus are not warped: never stand behind the mirror, and keep the menus off during shows.`,
-      });
-    }
-    if (z.reflected.wallAzimuths) {
-      findings.push({
-        level: 'caution',
-        text: `The picture itself meets the dome at the eye height of people ${band.label} (${range(band)}) ${describeArc(z.reflected.wallAzimuths)}: people there have the light in their eyes, and anyone who looks toward the mirror sees the lens's reflection. Seat people so that they face away from the mirror, or keep the lowest part of the picture dark.`,
-      });
-    } else if (z.reflected.crosses && (z.reflected.floorShare ?? 0) > 0) {
-      findings.push({
-        level: 'caution',
-        text: `Reflected light passes through the eye height of people ${band.label} (${range(band)}) over ${((z.reflected.floorShare ?? 0) * 100).toFixed(0)}% of the floor, up to ${L(z.reflected.reachFromMirror ?? 0)} from the mirror: nobody should look toward the mirror from there.`,
-      });
-    }
-  }
-  const lensH = h(P[2]);
-  const mirrorH = h(C[2]);
+  const lensH = s.tracer.frame.origin[2] + floor;
+  const mirrorH = rig.mirror.center[2] + floor;
   if (!findings.some((f) => f.level === 'danger')) {
     findings.unshift({ level: 'note', text: `The beam between projector and mirror stays clear of the eye-height bands (the lens is ${L(lensH)} above the floor, the mirror's centre ${L(mirrorH)}); a child or someone bending down can still meet it, so keep its path clear.` });
   }
