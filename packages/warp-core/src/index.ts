@@ -7,8 +7,8 @@ export { DEG, RAD, angleBetween, azAltFromDirection, directionFromAzAlt, wrapDeg
 export { LENGTH_UNITS, formatLength, fromMetres, isLengthUnit, parseLengthString, toMetres, type LengthUnit } from './units.js';
 export { linearToSrgb, srgbToLinear } from './srgb.js';
 
-export { RigError, validateRigGeometry, type ContentModel, type DomeModel, type MirrorModel, type ProjectorBody, type ProjectorModel, type Rig } from './rig/model.js';
-export { rigFromDocument, rigToDocument, type RigDocumentOptions } from './rig/document.js';
+export { MAX_PROJECTOR_SIDE, RigError, validateRigGeometry, type ContentModel, type DomeModel, type MirrorModel, type ProjectorBody, type ProjectorModel, type Rig } from './rig/model.js';
+export { rigFromDocument, rigToDocument, shortQuote, type RigDocumentOptions } from './rig/document.js';
 export { rigWarnings } from './rig/warnings.js';
 
 export { pixelToRay, rayToPixel, projectorFrame, type ProjectorFrame } from './optics/projector.js';

@@ -114,7 +114,7 @@ export function registerWarp(program: Command): void {
       }
       if (opts.rawIn) {
         if (inputs.length > 0) throw new UserError('--raw-in reads frames from standard input: give no input files');
-        const spec = parseRawSpec(opts.rawIn);
+        const spec = parseRawSpec(opts.rawIn, opts.maxPixels);
         await runRawPipe(map, mapSettings, spec, opts.filter);
         return;
       }

@@ -59,9 +59,9 @@ export function readObj(text: string): WarpMesh {
     const line = raw.trim();
     if (line.startsWith('# skyfold-grid ')) grid = line.slice(15).trim().split(/\s+/).map(Number);
     else if (line.startsWith('# skyfold-meta ')) meta = JSON.parse(line.slice(15)) as Record<string, unknown>;
-    else if (line.startsWith('vt ')) vt.push(...line.slice(3).trim().split(/\s+/).slice(0, 2).map(Number));
+    else if (line.startsWith('vt ')) for (const x of line.slice(3).trim().split(/\s+/).slice(0, 2)) vt.push(Number(x));
     else if (line.startsWith('v ')) vCount++;
-    else if (line.startsWith('#bm ')) bm.push(...line.slice(4).trim().split(/\s+/).map(Number));
+    else if (line.startsWith('#bm ')) for (const x of line.slice(4).trim().split(/\s+/)) bm.push(Number(x));
   }
   if (!grid || grid.length !== 4 || grid.some((x) => !Number.isFinite(x))) {
     throw new Error('Expected a "# skyfold-grid cols rows width height" line in the OBJ (not a skyfold warp mesh?)');

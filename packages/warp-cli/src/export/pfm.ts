@@ -53,9 +53,12 @@ export function decodePfm(bytes: Uint8Array, options: PfmOptions): PfmImage {
   const token = (): string => {
     while (p < bytes.length && isSpace(bytes[p])) p++;
     const start = p;
-    while (p < bytes.length && !isSpace(bytes[p])) p++;
+    while (p < bytes.length && !isSpace(bytes[p]) && p - start < 32) p++;
     if (p >= bytes.length) throw new Error('Expected a PFM header but the data ended');
-    return String.fromCharCode(...bytes.subarray(start, p));
+    if (!isSpace(bytes[p])) throw new Error('Expected a PFM header of short tokens but found a long run of bytes');
+    let s = '';
+    for (let i = start; i < p; i++) s += String.fromCharCode(bytes[i]);
+    return s;
   };
   const magic = token();
   if (magic !== 'PF' && magic !== 'Pf') throw new Error(`Expected PFM magic "PF" or "Pf" but received "${magic.slice(0, 8)}"`);

@@ -1,7 +1,7 @@
 /** Reads YAML or JSON documents from disk with one-line errors that give line and column. */
-import { readFileSync } from 'node:fs';
-import { parseDocument } from 'yaml';
-import { RigError, rigFromDocument, rigWarnings, type Rig } from '@skyfold/warp-core';
+import { closeSync, fstatSync, openSync, readSync, constants as fsConstants } from 'node:fs';
+import { isMap, isScalar, isSeq, parseDocument, type Node as YamlNode } from 'yaml';
+import { RigError, rigFromDocument, rigWarnings, shortQuote, type Rig } from '@skyfold/warp-core';
 import { UserError } from '../errors.js';
 import { warn } from '../messages.js';
 import { readDomeMesh } from './dome-mesh-file.js';
@@ -18,28 +18,116 @@ function lineCol(text: string, pos: number): [number, number] {
   return [line, col];
 }
 
+/** Rig and measurement files are a few kilobytes; anything this large is the wrong file, refused before parsing. */
+export const MAX_DOCUMENT_BYTES = 4 * 2 ** 20;
+/** Deeper nesting than any rig has (a rig is three levels deep); it also keeps recursive consumers safe. */
+export const MAX_DOCUMENT_DEPTH = 32;
+
+function where(text: string, pos: number): string {
+  const [l, c] = lineCol(text, pos);
+  return `line ${l}, column ${c}: `;
+}
+
+/**
+ * One linear pass over JSON text that JSON.parse has accepted: a key given twice in one object
+ * (which JSON.parse silently resolves last-wins) and nesting deeper than MAX_DOCUMENT_DEPTH are refused.
+ */
+function checkJsonStructure(text: string, label: string): void {
+  const stack: (Set<string> | null)[] = [];
+  let expectKey = false;
+  for (let i = 0; i < text.length; i++) {
+    const c = text.charCodeAt(i);
+    if (c === 0x22) {
+      let j = i + 1;
+      while (j < text.length && text.charCodeAt(j) !== 0x22) j += text.charCodeAt(j) === 0x5c ? 2 : 1;
+      const top = stack[stack.length - 1];
+      if (top && expectKey) {
+        const key = JSON.parse(text.slice(i, j + 1)) as string;
+        if (top.has(key)) throw new UserError(`${label}: ${where(text, i)}the key ${shortQuote(key)} appears twice in one object`);
+        top.add(key);
+        expectKey = false;
+      }
+      i = j;
+    } else if (c === 0x7b || c === 0x5b) {
+      stack.push(c === 0x7b ? new Set() : null);
+      expectKey = c === 0x7b;
+      if (stack.length > MAX_DOCUMENT_DEPTH) throw new UserError(`${label}: ${where(text, i)}nested more than ${MAX_DOCUMENT_DEPTH} levels deep`);
+    } else if (c === 0x7d || c === 0x5d) {
+      stack.pop();
+      expectKey = false;
+    } else if (c === 0x2c) {
+      expectKey = stack[stack.length - 1] instanceof Set;
+    }
+  }
+}
+
+/** One pass over the YAML nodes (each visited once, aliases not followed): duplicate keys and depth. */
+function checkYamlStructure(root: YamlNode | null, text: string, label: string): void {
+  const stack: [YamlNode, number][] = root ? [[root, 1]] : [];
+  while (stack.length > 0) {
+    const [node, depth] = stack.pop()!;
+    if (depth > MAX_DOCUMENT_DEPTH) throw new UserError(`${label}: ${where(text, node.range?.[0] ?? 0)}nested more than ${MAX_DOCUMENT_DEPTH} levels deep`);
+    if (isMap(node)) {
+      const seen = new Set<unknown>();
+      for (const pair of node.items) {
+        const k = pair.key as YamlNode | null;
+        const key = isScalar(k) ? k.value : k ? String(k) : null;
+        if (seen.has(key)) throw new UserError(`${label}: ${where(text, k?.range?.[0] ?? 0)}the key ${shortQuote(String(key))} appears twice in one mapping`);
+        seen.add(key);
+        if (pair.value && typeof pair.value === 'object') stack.push([pair.value as YamlNode, depth + 1]);
+      }
+    } else if (isSeq(node)) {
+      for (const item of node.items) if (item && typeof item === 'object') stack.push([item as YamlNode, depth + 1]);
+    }
+  }
+}
+
 /** Parses a YAML (or, for .json files, JSON) document; syntax errors become UserErrors with line and column. */
 export function parseDocumentText(text: string, label: string): unknown {
+  if (text.length > MAX_DOCUMENT_BYTES) throw new UserError(`${label}: ${(text.length / 2 ** 20).toFixed(1)} MB is far larger than a rig or measurement file (at most ${MAX_DOCUMENT_BYTES / 2 ** 20} MB)`);
   if (label.toLowerCase().endsWith('.json')) {
+    let value: unknown;
     try {
-      return JSON.parse(text);
+      value = JSON.parse(text);
     } catch (e) {
       const msg = (e as Error).message;
       const m = /position (\d+)/.exec(msg);
-      const where = m ? (([l, c]) => `line ${l}, column ${c}: `)(lineCol(text, Number(m[1]))) : '';
-      throw new UserError(`${label}: ${where}JSON syntax error: ${msg.split('\n')[0]}`);
+      const at = m ? where(text, Number(m[1])) : '';
+      throw new UserError(`${label}: ${at}JSON syntax error: ${clip(msg.split('\n')[0])}`);
     }
+    checkJsonStructure(text, label);
+    return value;
   }
-  const doc = parseDocument(text, { prettyErrors: false, uniqueKeys: true });
+  // uniqueKeys is checked below in one pass: the parser's own check compares every pair of keys
+  const doc = parseDocument(text, { prettyErrors: false, uniqueKeys: false });
   if (doc.errors.length > 0) {
     const err = doc.errors[0];
     const lp = err.linePos?.[0];
     const [line, col] = lp ? [lp.line, lp.col] : lineCol(text, err.pos[0]);
-    const where = `line ${line}, column ${col}: `;
     const msg = err.message.split('\n')[0].replace(/ at line \d+, column \d+:?$/, '');
-    throw new UserError(`${label}: ${where}YAML syntax error: ${msg}`);
+    const why = /call stack/i.test(msg) ? `nested too deeply` : `YAML syntax error: ${clip(msg)}`;
+    throw new UserError(`${label}: line ${line}, column ${col}: ${why}`);
   }
-  return doc.toJS();
+  checkYamlStructure(doc.contents as YamlNode | null, text, label);
+  try {
+    // aliases expand here; the default alias budget stops a "billion laughs" document
+    return doc.toJS({ maxAliasCount: 100 });
+  } catch (e) {
+    const msg = (e as Error).message ?? String(e);
+    const why = /alias count/i.test(msg)
+      ? 'its aliases expand to too much (an alias bomb?)'
+      : /alias/i.test(msg)
+        ? `YAML error: ${clip(msg.split('\n')[0])}`
+        : e instanceof RangeError
+          ? 'nested too deeply'
+          : `YAML error: ${clip(msg.split('\n')[0])}`;
+    throw new UserError(`${label}: ${why}`);
+  }
+}
+
+/** A parser's message, cut to a readable length (it may quote the input). */
+function clip(msg: string, max = 160): string {
+  return msg.length > max ? msg.slice(0, max - 1) + '…' : msg;
 }
 
 function readFailure(path: string, what: string, e: unknown): UserError {
@@ -48,21 +136,48 @@ function readFailure(path: string, what: string, e: unknown): UserError {
   return new UserError(`${path}: cannot read the ${what}: ${why}`);
 }
 
-export function readTextFile(path: string, what: string): string {
+/**
+ * Reads a whole regular file of at most `maxBytes`, refusing anything else before reading: a FIFO or
+ * device would block, a huge file would exhaust memory. Opened non-blocking so a FIFO never hangs the open.
+ */
+export function readBoundedFile(path: string, what: string, maxBytes: number): Buffer {
+  let fd: number;
   try {
-    return readFileSync(path, 'utf8');
+    fd = openSync(path, fsConstants.O_RDONLY | (fsConstants.O_NONBLOCK ?? 0));
   } catch (e) {
     throw readFailure(path, what, e);
+  }
+  try {
+    const st = fstatSync(fd);
+    if (st.isDirectory()) throw new UserError(`${path}: cannot read the ${what}: is a folder, not a file`);
+    if (!st.isFile()) throw new UserError(`${path}: cannot read the ${what}: not a regular file (a pipe, socket or device)`);
+    if (st.size > maxBytes) throw new UserError(`${path}: the ${what} is ${(st.size / 2 ** 20).toFixed(1)} MB, more than the ${(maxBytes / 2 ** 20).toFixed(0)} MB allowed`);
+    const buf = Buffer.alloc(st.size);
+    let at = 0;
+    while (at < buf.length) {
+      const n = readSync(fd, buf, at, buf.length - at, at);
+      if (n === 0) break;
+      at += n;
+    }
+    return at === buf.length ? buf : buf.subarray(0, at);
+  } catch (e) {
+    if (e instanceof UserError) throw e;
+    throw readFailure(path, what, e);
+  } finally {
+    closeSync(fd);
   }
 }
 
-export function readBinaryFile(path: string, what: string): Uint8Array {
-  try {
-    const bytes = readFileSync(path);
-    return new Uint8Array(bytes.buffer, bytes.byteOffset, bytes.byteLength);
-  } catch (e) {
-    throw readFailure(path, what, e);
-  }
+export function readTextFile(path: string, what: string): string {
+  return readBoundedFile(path, what, MAX_DOCUMENT_BYTES).toString('utf8');
+}
+
+/** Larger than any mesh skyfold writes (a 1025-column grid as .glb is under 40 MB). */
+export const MAX_BINARY_BYTES = 256 * 2 ** 20;
+
+export function readBinaryFile(path: string, what: string, maxBytes = MAX_BINARY_BYTES): Uint8Array {
+  const bytes = readBoundedFile(path, what, maxBytes);
+  return new Uint8Array(bytes.buffer, bytes.byteOffset, bytes.byteLength);
 }
 
 /**

@@ -5,6 +5,7 @@
 import { remap, type ImageBuffer, type RemapFilter } from '@skyfold/warp-core';
 import { UserError } from '../errors.js';
 import type { MapSettings, MapSource } from './map-source.js';
+import { DEFAULT_MAX_PIXELS } from '../io/image-codec.js';
 
 export interface RawSpec {
   width: number;
@@ -12,10 +13,15 @@ export interface RawSpec {
   format: 'rgb24' | 'rgb48le';
 }
 
-export function parseRawSpec(text: string): RawSpec {
-  const m = /^(\d+)x(\d+)(?::(rgb24|rgb48le))?$/.exec(text.trim());
-  if (!m || Number(m[1]) < 1 || Number(m[2]) < 1) throw new UserError(`--raw-in: expected WxH or WxH:rgb24 or WxH:rgb48le, got "${text}"`);
-  return { width: Number(m[1]), height: Number(m[2]), format: (m[3] as RawSpec['format']) ?? 'rgb24' };
+/** Parses WxH[:fmt]; a frame of more than `maxPixels` is refused (the same bound as --max-pixels for files). */
+export function parseRawSpec(text: string, maxPixels = DEFAULT_MAX_PIXELS): RawSpec {
+  const m = /^(\d{1,9})x(\d{1,9})(?::(rgb24|rgb48le))?$/.exec(text.trim());
+  const shown = text.length > 40 ? text.slice(0, 39) + '…' : text;
+  if (!m || Number(m[1]) < 1 || Number(m[2]) < 1) throw new UserError(`--raw-in: expected WxH or WxH:rgb24 or WxH:rgb48le, got "${shown}"`);
+  const width = Number(m[1]);
+  const height = Number(m[2]);
+  if (width * height > maxPixels) throw new UserError(`--raw-in: a ${width}x${height} frame is more than ${maxPixels} pixels (raise --max-pixels if it is meant)`);
+  return { width, height, format: (m[3] as RawSpec['format']) ?? 'rgb24' };
 }
 
 /** Reads exactly-sized frames from a stream as they arrive. */
@@ -36,17 +42,32 @@ async function* rawFrames(stream: NodeJS.ReadableStream, frameBytes: number): As
   if (have > 0) throw new UserError(`--raw-in: standard input ended inside a frame (${have} of ${frameBytes} bytes)`);
 }
 
+/** Writes one frame and waits until the stream has taken it; rejects with the stream's error (EPIPE when the reader left). */
 function write(stream: NodeJS.WritableStream, bytes: Uint8Array): Promise<void> {
   return new Promise((resolve, reject) => {
-    if (stream.write(bytes)) resolve();
-    else {
-      stream.once('drain', resolve);
-      stream.once('error', reject);
-    }
+    stream.write(bytes, (err) => (err ? reject(err) : resolve()));
   });
 }
 
-export async function runRawPipe(source: MapSource, s: MapSettings, spec: RawSpec, filter: RemapFilter): Promise<void> {
+/** The reader of standard output went away (`| head -c 1000`): a normal end of the pipe, not a failure. */
+function isClosedPipe(e: unknown): boolean {
+  const code = (e as NodeJS.ErrnoException)?.code;
+  return code === 'EPIPE' || code === 'ERR_STREAM_DESTROYED' || code === 'ERR_STREAM_WRITE_AFTER_END';
+}
+
+export interface RawStreams {
+  input: NodeJS.ReadableStream;
+  output: NodeJS.WritableStream;
+  log: NodeJS.WritableStream;
+}
+
+export async function runRawPipe(
+  source: MapSource,
+  s: MapSettings,
+  spec: RawSpec,
+  filter: RemapFilter,
+  streams: RawStreams = { input: process.stdin, output: process.stdout, log: process.stderr },
+): Promise<void> {
   const map = source.build([spec.width, spec.height], s);
   const bps = spec.format === 'rgb48le' ? 2 : 1;
   const frameBytes = spec.width * spec.height * 3 * bps;
@@ -66,11 +87,29 @@ export async function runRawPipe(source: MapSource, s: MapSettings, spec: RawSpe
     data: bps === 2 ? new Uint16Array(inAligned.buffer, inAligned.byteOffset, frameBytes / 2) : new Uint8Array(inAligned.buffer, inAligned.byteOffset, frameBytes),
   };
   let frames = 0;
-  for await (const frame of rawFrames(process.stdin, frameBytes)) {
-    frame.copy(inAligned); // aligned copy: 16-bit samples are read in place (little-endian hosts)
-    remap(src, map, { filter, out });
-    await write(process.stdout, outBuf);
-    frames++;
+  let readerGone = false;
+  // an EPIPE also arrives as an 'error' event; without a listener it would end the process
+  const onError = (e: unknown) => {
+    if (isClosedPipe(e)) readerGone = true;
+  };
+  streams.output.on('error', onError);
+  try {
+    for await (const frame of rawFrames(streams.input, frameBytes)) {
+      frame.copy(inAligned); // aligned copy: 16-bit samples are read in place (little-endian hosts)
+      remap(src, map, { filter, out });
+      try {
+        await write(streams.output, outBuf);
+      } catch (e) {
+        if (!isClosedPipe(e)) throw e;
+        readerGone = true;
+      }
+      if (readerGone) break;
+      frames++;
+    }
+  } finally {
+    // once the reader is gone more EPIPE events may follow: keep listening so none ends the process
+    if (!readerGone) streams.output.removeListener('error', onError);
   }
-  process.stderr.write(`skyfold: warped ${frames} raw frames ${spec.width}x${spec.height} -> ${map.width}x${map.height} (${spec.format})\n`);
+  const why = readerGone ? '; the reader closed the pipe' : '';
+  streams.log.write(`skyfold: warped ${frames} raw frames ${spec.width}x${spec.height} -> ${map.width}x${map.height} (${spec.format})${why}\n`);
 }

@@ -683,7 +683,7 @@ export function fitRig(rig: Rig, set: MeasurementSet, options: Partial<FitOption
     for (; rounds < 30; rounds++) {
       const raw = plainResiduals(fit.p)!;
       const next = itemWeights(raw, nd, no, o.huberK);
-      const change = Math.max(0, ...next.map((w, i) => Math.abs(w - weights[i])));
+      const change = next.reduce((m, w, i) => Math.max(m, Math.abs(w - weights[i])), 0);
       weights = next;
       if (change < 1e-4 && rounds > 0) break;
       const sw = expandWeights(weights, nd, no);

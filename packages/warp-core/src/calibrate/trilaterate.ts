@@ -85,7 +85,7 @@ export function locatePoint(anchors: readonly ReadonlyVec3[], distances: readonl
   if (!pair) return null;
   const candidates = pair.map((p) => (anchors.length > 3 ? trilaterateLeastSquares(anchors, distances, p) : { point: p, rms: 0 }));
   const [c0, c1] = candidates;
-  const scaleLen = Math.max(1e-9, ...distances);
+  const scaleLen = distances.reduce((m, d) => (d > m ? d : m), 1e-9);
   const tied = Math.abs(c0.rms - c1.rms) <= 1e-6 * scaleLen || length(sub(c0.point, c1.point)) <= 1e-9 * scaleLen;
   if (!tied) return c0.rms < c1.rms ? c0 : c1;
   return length(sub(c0.point, prefer)) <= length(sub(c1.point, prefer)) ? c0 : c1;

@@ -230,7 +230,7 @@ export function measureAccuracy(tracer: Tracer, mesh: WarpMesh, masterSize: numb
   return {
     cells: cellProj.length,
     errorP99Projector: quantile(finiteProj, 0.99),
-    errorMaxProjector: cellProj.length ? Math.max(...finiteProj) : 0,
+    errorMaxProjector: maxOf(finiteProj),
     errorP99Px: quantile(cellPx, 0.99),
     errorMaxPx: cellPx.length ? cellPx.reduce((m, x) => (x > m ? x : m), 0) : 0,
     overTolerance: cellProj.length ? over / cellProj.length : 0,

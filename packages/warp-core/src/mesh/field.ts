@@ -54,10 +54,13 @@ function difference(out: number[], c: GridOutput, m: GridOutput, p: GridOutput, 
 
 /** The q-quantile (0..1) of the finite values of a, by sorting a copy. */
 export function quantile(a: ArrayLike<number>, q: number): number {
-  const v: number[] = [];
-  for (let i = 0; i < a.length; i++) if (Number.isFinite(a[i])) v.push(a[i]);
-  if (v.length === 0) return Number.NaN;
-  v.sort((x, y) => x - y);
+  let m = 0;
+  for (let i = 0; i < a.length; i++) if (Number.isFinite(a[i])) m++;
+  if (m === 0) return Number.NaN;
+  const v = new Float64Array(m);
+  m = 0;
+  for (let i = 0; i < a.length; i++) if (Number.isFinite(a[i])) v[m++] = a[i];
+  v.sort(); // typed arrays sort numerically
   const pos = Math.min(v.length - 1, Math.max(0, q * (v.length - 1)));
   const lo = Math.floor(pos);
   const hi = Math.ceil(pos);
@@ -191,20 +194,37 @@ export function featherMask(g: GridOutput, fov: number, featherRad: number, lit:
 export function fillUnlit(cols: number, rows: number, known: Uint8Array, ...fields: (Float32Array | Float64Array)[]): void {
   const n = cols * rows;
   const have = Uint8Array.from(known);
-  let frontier: number[] = [];
-  for (let k = 0; k < n; k++) if (!have[k]) frontier.push(k);
   if (!have.some((x) => x === 1)) {
     for (const f of fields) f.fill(0.5);
     return;
   }
-  const sums = new Float64Array(fields.length);
-  while (frontier.length > 0) {
-    const next: number[] = [];
-    const filled: [number, number[]][] = [];
-    for (const k of frontier) {
+  // Layer by layer outwards from the lit points (breadth first): each layer is the unfilled points
+  // next to the ones filled before it, averaged from those, so the work is linear in the grid.
+  const queued = Uint8Array.from(have);
+  let layer: number[] = [];
+  const enqueueAround = (k: number, into: number[]) => {
+    const i = k % cols;
+    const j = (k - i) / cols;
+    for (let dj = -1; dj <= 1; dj++)
+      for (let di = -1; di <= 1; di++) {
+        const ii = i + di;
+        const jj = j + dj;
+        if (ii < 0 || jj < 0 || ii >= cols || jj >= rows) continue;
+        const m = jj * cols + ii;
+        if (!queued[m]) {
+          queued[m] = 1;
+          into.push(m);
+        }
+      }
+  };
+  for (let k = 0; k < n; k++) if (have[k]) enqueueAround(k, layer);
+  const F = fields.length;
+  while (layer.length > 0) {
+    const vals = new Float64Array(layer.length * F);
+    for (let q = 0; q < layer.length; q++) {
+      const k = layer[q];
       const i = k % cols;
       const j = (k - i) / cols;
-      sums.fill(0);
       let c = 0;
       for (let dj = -1; dj <= 1; dj++)
         for (let di = -1; di <= 1; di++) {
@@ -213,18 +233,19 @@ export function fillUnlit(cols: number, rows: number, known: Uint8Array, ...fiel
           if (ii < 0 || jj < 0 || ii >= cols || jj >= rows) continue;
           const m = jj * cols + ii;
           if (have[m]) {
-            for (let f = 0; f < fields.length; f++) sums[f] += fields[f][m];
+            for (let f = 0; f < F; f++) vals[q * F + f] += fields[f][m];
             c++;
           }
         }
-      if (c > 0) filled.push([k, Array.from(sums, (s) => s / c)]);
-      else next.push(k);
+      for (let f = 0; f < F; f++) vals[q * F + f] /= c;
     }
-    for (const [k, vals] of filled) {
-      for (let f = 0; f < fields.length; f++) fields[f][k] = vals[f];
+    const next: number[] = [];
+    for (let q = 0; q < layer.length; q++) {
+      const k = layer[q];
+      for (let f = 0; f < F; f++) fields[f][k] = vals[q * F + f];
       have[k] = 1;
     }
-    if (filled.length === 0) break;
-    frontier = next;
+    for (const k of layer) enqueueAround(k, next);
+    layer = next;
   }
 }

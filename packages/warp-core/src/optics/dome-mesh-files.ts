@@ -79,7 +79,7 @@ function tooMany(line?: number): MeshFileError {
 
 function finite(text: string, what: string, line: number): number {
   const x = Number(text);
-  if (text === undefined || text === '' || !Number.isFinite(x)) throw new MeshFileError(`expected a finite number for ${what}, got ${JSON.stringify(text ?? '')}`, line);
+  if (text === undefined || text === '' || !Number.isFinite(x)) throw new MeshFileError(`expected a finite number for ${what}, got ${JSON.stringify((text ?? '').slice(0, 20))}`, line);
   return x;
 }
 
@@ -323,7 +323,7 @@ function parsePly(bytes: Uint8Array): TriangleSoup {
             const c = finite(w[at++], `the count of ${prop.name}`, lineNo);
             const vals: number[] = [];
             for (let q = 0; q < c; q++) vals.push(finite(w[at++], prop.name, lineNo));
-            if (el === faceEl && p === listAt) corner.push(...vals);
+            if (el === faceEl && p === listAt) for (const v of vals) corner.push(v);
           } else {
             const x = finite(w[at++], prop.name, lineNo);
             if (el === vertexEl) {

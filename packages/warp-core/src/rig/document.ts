@@ -3,7 +3,7 @@
  * every error names the dotted field, what was expected and what came.
  */
 import { DEG, length, normalize, RAD, type Vec3 } from '../math.js';
-import { RigError, validateRigGeometry, type ProjectorBody, type Rig } from './model.js';
+import { MAX_PROJECTOR_SIDE, RigError, validateRigGeometry, type ProjectorBody, type Rig } from './model.js';
 import { DomeMesh, MAX_DOME_TRIANGLES, type TriangleSoup } from '../optics/dome-mesh.js';
 import { canonicalUnit, fromMetres, isLengthUnit, LENGTH_UNITS, LengthSyntaxError, METRES_PER_UNIT, parseLengthString, type LengthUnit } from '../units.js';
 
@@ -23,17 +23,29 @@ export const RIG_FIELDS: Readonly<Record<string, readonly string[]>> = {
   content: ['fov', 'eye'],
 };
 
-/** Shows a value the way it appeared in the file: strings quoted, others as JSON. */
+/** Error lines quote at most this much of the input (a file may hold megabytes in one token). */
+const QUOTE_CHARS = 60;
+
+/** A piece of text as a short quoted string: at most QUOTE_CHARS characters of it, "…" marking a cut. */
+export function shortQuote(text: string): string {
+  return JSON.stringify(text.length > QUOTE_CHARS ? text.slice(0, QUOTE_CHARS - 1) + '…' : text);
+}
+
+/** Shows a value the way it appeared in the file: strings quoted, others as JSON; always short. */
 export function showValue(v: unknown): string {
   if (v === undefined) return 'nothing';
   if (v === null) return 'null';
-  if (typeof v === 'string') return JSON.stringify(v);
+  if (typeof v === 'string') return shortQuote(v);
   if (typeof v === 'number') return String(v);
+  return shortJson(v);
+}
+
+function shortJson(v: unknown): string {
   try {
-    const s = JSON.stringify(v);
-    return s.length > 60 ? s.slice(0, 57) + '...' : s;
+    const s = JSON.stringify(v) ?? String(v);
+    return s.length > QUOTE_CHARS ? s.slice(0, QUOTE_CHARS - 3) + '...' : s;
   } catch {
-    return String(v);
+    return typeof v;
   }
 }
 
@@ -136,10 +148,13 @@ function section(doc: Doc, key: string, required: boolean): Doc | undefined {
 
 /** Throws on a field the rig format does not have, suggesting the nearest known one. */
 export function checkKnownFields(obj: Doc, path: string, known: readonly string[]): void {
-  for (const key of Object.keys(obj)) {
+  for (const key in obj) {
+    if (!Object.hasOwn(obj, key)) continue;
     if (!known.includes(key)) {
-      const hint = didYouMean(key, known);
-      const field = path ? `${path}.${key}` : key;
+      // a long key is no typo of a short name: skip the edit distance, quote a piece of it
+      const hint = key.length <= 40 ? didYouMean(key, known) : undefined;
+      const name = key.length <= 40 && /^[\w-]+$/.test(key) ? key : shortQuote(key);
+      const field = path ? `${path}.${name}` : name;
       throw new RigError(field, `unknown field${hint ? `; did you mean "${hint}"?` : ` (known here: ${known.join(', ')})`}`);
     }
   }
@@ -233,6 +248,9 @@ export function rigFromDocument(input: unknown, options: RigDocumentOptions = {}
   const resV = need(proj, 'resolution', 'projector');
   if (!Array.isArray(resV) || resV.length !== 2 || !resV.every((x) => typeof x === 'number' && Number.isInteger(x) && x > 0)) {
     throw new RigError('projector.resolution', `expected two positive whole numbers [width, height], got ${showValue(resV)}`);
+  }
+  if (resV[0] > MAX_PROJECTOR_SIDE || resV[1] > MAX_PROJECTOR_SIDE) {
+    throw new RigError('projector.resolution', `expected at most ${MAX_PROJECTOR_SIDE} pixels a side (8K is beyond any projector), got ${showValue(resV)}`);
   }
   const throwRatio = r.number(need(proj, 'throwRatio', 'projector'), 'projector.throwRatio', (x) => x > 0 && x >= 1e-3 && x <= 1e3, 'a positive number (throw distance / image width, 0.001 to 1000)');
   const lensShift = proj.lensShift === undefined ? ([0, 0] as [number, number]) : r.pair(proj.lensShift, 'projector.lensShift');

@@ -68,6 +68,12 @@ export interface Rig {
   content: ContentModel;
 }
 
+/**
+ * Most pixels a projector has on a side: 8K (8192) is beyond any projector made today (from memory:
+ * the largest are 8K UHD, 7680 × 4320), and the trace, the mesh and the frames stay within memory.
+ */
+export const MAX_PROJECTOR_SIDE = 8192;
+
 /** A rig that cannot work, or a field that is wrong; `field` is the dotted path ("mirror.radius"). */
 export class RigError extends Error {
   constructor(readonly field: string, readonly reason: string) {
@@ -147,6 +153,7 @@ export function validateRigGeometry(rig: Rig): void {
   if (!(pm > mirror.radius)) throw new RigError('projector.position', 'the projector is inside the mirror sphere');
   const [w, h] = projector.resolution;
   if (!(Number.isInteger(w) && w > 0 && Number.isInteger(h) && h > 0)) throw new RigError('projector.resolution', 'expected two positive whole numbers');
+  if (w > MAX_PROJECTOR_SIDE || h > MAX_PROJECTOR_SIDE) throw new RigError('projector.resolution', `expected at most ${MAX_PROJECTOR_SIDE} pixels a side (8K is beyond any projector)`);
   if (!(projector.throwRatio > 0)) throw new RigError('projector.throwRatio', 'expected a positive number');
   projectorBasis(projector);
   if (!(content.fov > 0 && content.fov <= 2 * Math.PI)) throw new RigError('content.fov', 'expected an angle in (0, 360] degrees');
