@@ -1,36 +1,19 @@
 /**
- * `skyfold bake` end to end, the real binary run as a user runs it (STYLE.md 10): every format written,
+ * `skyfold bake` as a user runs it, in-process on temporary files (STYLE.md 10): every format written,
  * the --json summary, the .glb through the Khronos glTF validator, and bad input refused with exit 2.
  */
-import { execFile } from 'node:child_process';
-import { existsSync, mkdtempSync, readFileSync, rmSync } from 'node:fs';
-import { tmpdir } from 'node:os';
+import { existsSync, readFileSync } from 'node:fs';
 import { join } from 'node:path';
-import { fileURLToPath } from 'node:url';
-import { promisify } from 'node:util';
-import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { describe, expect, it } from 'vitest';
 import { unzipSync } from 'fflate';
 // @ts-expect-error gltf-validator ships no type declarations
 import validator from 'gltf-validator';
+import { DEMO_RIG, skyfold as runSkyfold, tempDir, type Run } from './support.js';
 
-const ROOT = fileURLToPath(new URL('..', import.meta.url));
-const BIN = join(ROOT, 'node_modules/.bin/skyfold');
-const RIG = join(ROOT, 'fixtures/demo-rig.yaml');
-const run = promisify(execFile);
+const RIG = DEMO_RIG;
 
-interface RunResult {
-  code: number;
-  stdout: string;
-  stderr: string;
-}
-async function skyfold(cwd: string, ...args: string[]): Promise<RunResult> {
-  try {
-    const { stdout, stderr } = await run(BIN, args, { cwd, maxBuffer: 1 << 24 });
-    return { code: 0, stdout, stderr };
-  } catch (e) {
-    const err = e as { code?: number; stdout?: string; stderr?: string };
-    return { code: typeof err.code === 'number' ? err.code : -1, stdout: err.stdout ?? '', stderr: err.stderr ?? '' };
-  }
+function skyfold(cwd: string, ...args: string[]): Promise<Run> {
+  return runSkyfold(args, { cwd });
 }
 
 /**
@@ -71,12 +54,8 @@ async function expectValidGltf(path: string): Promise<void> {
   expect(report.issues.numErrors).toBe(0);
 }
 
-describe('skyfold bake (the real binary)', () => {
-  let dir: string;
-  beforeAll(() => {
-    dir = mkdtempSync(join(tmpdir(), 'skyfold-bake-cli-'));
-  });
-  afterAll(() => rmSync(dir, { recursive: true, force: true }));
+describe('skyfold bake', () => {
+  const dir = tempDir('bake-cli');
 
   it('writes all six formats with an explicit --grid 97x61, and --json reports the summary', async () => {
     const names = ['mesh.glb', 'mesh.obj', 'mesh.pfm', 'mesh.mpcdi', 'mesh.png', 'mesh.csv'];

@@ -1,36 +1,18 @@
 /**
- * End to end: the real `skyfold` binary, spawned as a user runs it, in a temporary folder
+ * The `skyfold` program in a temporary folder, run in-process on captured streams as a user would type it
  * (DESIGN.md "Commands": --json output, exit 0 / 2, one-line errors naming file and field, no stack traces).
  */
-import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { spawnSync } from 'node:child_process';
-import { existsSync, mkdtempSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
-import { tmpdir } from 'node:os';
+import { describe, expect, it } from 'vitest';
+import { existsSync, readFileSync, writeFileSync } from 'node:fs';
 import { join } from 'node:path';
-import { fileURLToPath } from 'node:url';
 import { parse as parseYaml } from 'yaml';
 import { RAD, rigFromDocument, Tracer, type Rig } from '@skyfold/warp-core';
+import { FIXTURES, skyfold as runSkyfold, tempDir, type Run } from './support.js';
 
-const ROOT = fileURLToPath(new URL('..', import.meta.url));
-const BIN = join(ROOT, 'node_modules', '.bin', 'skyfold');
-let dir: string;
+const dir = tempDir('cli');
 
-beforeAll(() => {
-  dir = mkdtempSync(join(tmpdir(), 'skyfold-cli-'));
-});
-afterAll(() => {
-  rmSync(dir, { recursive: true, force: true });
-});
-
-interface Run {
-  status: number | null;
-  stdout: string;
-  stderr: string;
-}
-
-function skyfold(...args: string[]): Run {
-  const r = spawnSync(BIN, args, { cwd: dir, encoding: 'utf8', timeout: 20_000, env: { ...process.env, SKYFOLD_DEBUG: '' } });
-  return { status: r.status, stdout: r.stdout, stderr: r.stderr };
+function skyfold(...args: string[]): Promise<Run> {
+  return runSkyfold(args, { cwd: dir });
 }
 
 function write(name: string, text: string): string {
@@ -39,7 +21,7 @@ function write(name: string, text: string): string {
 }
 
 function vectors(name: 'a' | 'b' | 'c'): { rig: Record<string, any>; results: any[] } {
-  return JSON.parse(readFileSync(join(ROOT, 'fixtures', 'vectors', `vectors-${name}.json`), 'utf8'));
+  return JSON.parse(readFileSync(join(FIXTURES, 'vectors', `vectors-${name}.json`), 'utf8'));
 }
 
 function loadYamlRig(name: string): Rig {
@@ -48,7 +30,7 @@ function loadYamlRig(name: string): Rig {
 
 /** Exit 2 and exactly one line on stderr, no stack trace; returns that line. */
 function expectUserError(r: Run): string {
-  expect(r.status, `stdout: ${r.stdout}\nstderr: ${r.stderr}`).toBe(2);
+  expect(r.code, `stdout: ${r.stdout}\nstderr: ${r.stderr}`).toBe(2);
   const lines = r.stderr.trimEnd().split('\n');
   expect(lines, r.stderr).toHaveLength(1);
   expect(r.stderr).not.toMatch(/^\s{4}at /m);
@@ -63,20 +45,20 @@ function vectorsAYaml(name: string, edit: (rig: Record<string, any>) => void): s
   return write(name, JSON.stringify(rig, null, 2)); // JSON is YAML
 }
 
-describe('skyfold (spawned)', () => {
-  it('--help lists the commands and exits 0', () => {
-    const r = skyfold('--help');
-    expect(r.status).toBe(0);
+describe('skyfold', () => {
+  it('--help lists the commands and exits 0', async () => {
+    const r = await skyfold('--help');
+    expect(r.code).toBe(0);
     expect(r.stdout).toMatch(/^Usage: skyfold/);
     for (const c of ['init', 'probe', 'locate']) expect(r.stdout).toContain(c);
   });
 
-  it('init -o rig.yaml, then probe --json prints exactly the documented shape and agrees with the library', () => {
-    const init = skyfold('init', '-o', 'rig.yaml');
-    expect(init.status).toBe(0);
+  it('init -o rig.yaml, then probe --json prints exactly the documented shape and agrees with the library', async () => {
+    const init = await skyfold('init', '-o', 'rig.yaml');
+    expect(init.code).toBe(0);
     expect(existsSync(join(dir, 'rig.yaml'))).toBe(true);
-    const r = skyfold('probe', 'rig.yaml', '--pixel', '960,600', '--pixel', '0.5,0.5', '--pixel', '700.25,820.75', '--json');
-    expect(r.status, r.stderr).toBe(0);
+    const r = await skyfold('probe', 'rig.yaml', '--pixel', '960,600', '--pixel', '0.5,0.5', '--pixel', '700.25,820.75', '--json');
+    expect(r.code, r.stderr).toBe(0);
     const out = JSON.parse(r.stdout);
     // exactly one JSON line, keys in the documented order
     expect(r.stdout.trimEnd().split('\n')).toHaveLength(1);
@@ -107,13 +89,13 @@ describe('skyfold (spawned)', () => {
   });
 
   for (const name of ['a', 'b', 'c'] as const) {
-    it(`probe on fixtures/vectors/vectors-${name} (rig written out as JSON) gives the vector answers`, () => {
+    it(`probe on fixtures/vectors/vectors-${name} (rig written out as JSON) gives the vector answers`, async () => {
       const v = vectors(name);
       // vectors-c names its dome mesh relative to its own folder: the mesh goes beside the rig
-      if (typeof v.rig.dome.mesh === 'string') write(v.rig.dome.mesh, readFileSync(join(ROOT, 'fixtures', 'vectors', v.rig.dome.mesh), 'utf8'));
+      if (typeof v.rig.dome.mesh === 'string') write(v.rig.dome.mesh, readFileSync(join(FIXTURES, 'vectors', v.rig.dome.mesh), 'utf8'));
       const file = write(`vectors-${name}.json`, JSON.stringify(v.rig));
-      const r = skyfold('probe', file, '--json', ...v.results.flatMap((res) => ['--pixel', `${res.pixel[0]},${res.pixel[1]}`]));
-      expect(r.status, r.stderr).toBe(0);
+      const r = await skyfold('probe', file, '--json', ...v.results.flatMap((res) => ['--pixel', `${res.pixel[0]},${res.pixel[1]}`]));
+      expect(r.code, r.stderr).toBe(0);
       const out = JSON.parse(r.stdout);
       expect(out.results).toHaveLength(v.results.length);
       v.results.forEach((want, i) => {
@@ -133,10 +115,10 @@ describe('skyfold (spawned)', () => {
     });
   }
 
-  it('locate --json: a pixel, or pixel null with a reason', () => {
+  it('locate --json: a pixel, or pixel null with a reason', async () => {
     const file = write('a.json', JSON.stringify(vectors('a').rig));
-    const r = skyfold('locate', file, '--direction', '0,90', '--direction', '180,5', '--json');
-    expect(r.status, r.stderr).toBe(0);
+    const r = await skyfold('locate', file, '--direction', '0,90', '--direction', '180,5', '--json');
+    expect(r.code, r.stderr).toBe(0);
     const out = JSON.parse(r.stdout);
     expect(Object.keys(out)).toEqual(['results']);
     const [zenith, behind] = out.results;
@@ -155,9 +137,9 @@ describe('skyfold (spawned)', () => {
     expect(behind.reason).toMatch(/reflected view/);
   });
 
-  it('init --units ft writes the same rig, within the 0.01 in rounding of its lengths', () => {
-    expect(skyfold('init', '--units', 'ft', '-o', 'rig-ft.yaml').status).toBe(0);
-    if (!existsSync(join(dir, 'rig.yaml'))) expect(skyfold('init', '-o', 'rig.yaml').status).toBe(0);
+  it('init --units ft writes the same rig, within the 0.01 in rounding of its lengths', async () => {
+    expect((await skyfold('init', '--units', 'ft', '-o', 'rig-ft.yaml')).code).toBe(0);
+    if (!existsSync(join(dir, 'rig.yaml'))) expect((await skyfold('init', '-o', 'rig.yaml')).code).toBe(0);
     const text = readFileSync(join(dir, 'rig-ft.yaml'), 'utf8');
     expect(text).toMatch(/^units: ft$/m);
     expect(text).toMatch(/ ft [\d.]+ in"/);
@@ -179,64 +161,64 @@ describe('skyfold (spawned)', () => {
     expect(f.content).toEqual(m.content);
   });
 
-  it('init -o refuses to overwrite without --force', () => {
+  it('init -o refuses to overwrite without --force', async () => {
     write('keep.yaml', 'mine\n');
-    const line = expectUserError(skyfold('init', '-o', 'keep.yaml'));
+    const line = expectUserError(await skyfold('init', '-o', 'keep.yaml'));
     expect(line).toBe('skyfold: keep.yaml: already exists; pass --force to overwrite it');
     expect(readFileSync(join(dir, 'keep.yaml'), 'utf8')).toBe('mine\n');
-    expect(skyfold('init', '-o', 'keep.yaml', '--force').status).toBe(0);
+    expect((await skyfold('init', '-o', 'keep.yaml', '--force')).code).toBe(0);
     expect(readFileSync(join(dir, 'keep.yaml'), 'utf8')).toMatch(/^# skyfold rig file/);
   });
 });
 
 describe('bad input: exit 2, one line naming file and field, no stack trace', () => {
-  it('a negative radius string', () => {
+  it('a negative radius string', async () => {
     const f = vectorsAYaml('neg.yaml', (r) => (r.mirror.radius = '-3 in'));
-    expect(expectUserError(skyfold('probe', f, '--pixel', '1,1'))).toBe('skyfold: neg.yaml: mirror.radius: expected a positive length, got "-3 in"');
+    expect(expectUserError(await skyfold('probe', f, '--pixel', '1,1'))).toBe('skyfold: neg.yaml: mirror.radius: expected a positive length, got "-3 in"');
   });
 
-  it('an unknown field, with did-you-mean', () => {
+  it('an unknown field, with did-you-mean', async () => {
     const f = vectorsAYaml('typo.yaml', (r) => {
       r.projector.throwRaito = r.projector.throwRatio;
       delete r.projector.throwRatio;
     });
-    expect(expectUserError(skyfold('probe', f, '--pixel', '1,1'))).toBe('skyfold: typo.yaml: projector.throwRaito: unknown field; did you mean "throwRatio"?');
+    expect(expectUserError(await skyfold('probe', f, '--pixel', '1,1'))).toBe('skyfold: typo.yaml: projector.throwRaito: unknown field; did you mean "throwRatio"?');
   });
 
-  it('an unknown unit', () => {
+  it('an unknown unit', async () => {
     const f = vectorsAYaml('unit.yaml', (r) => (r.dome.radius = '2 yd'));
-    expect(expectUserError(skyfold('locate', f, '--direction', '0,90'))).toBe(
+    expect(expectUserError(await skyfold('locate', f, '--direction', '0,90'))).toBe(
       'skyfold: unit.yaml: dome.radius: unknown unit "yd" in "2 yd" (expected one of m, cm, mm, ft, in)',
     );
   });
 
-  it('a geometry refusal (the projector outside the dome)', () => {
+  it('a geometry refusal (the projector outside the dome)', async () => {
     const f = vectorsAYaml('outside.yaml', (r) => (r.projector.position = [0, 2.5, 0.15]));
-    expect(expectUserError(skyfold('probe', f, '--pixel', '1,1'))).toBe(
+    expect(expectUserError(await skyfold('probe', f, '--pixel', '1,1'))).toBe(
       'skyfold: outside.yaml: projector.position: the projector is outside the dome (2.504 m from the centre; the dome radius is 2 m)',
     );
   });
 
-  it('a JSON syntax error in a .json rig names the file (and line and column where JSON.parse gives a position)', () => {
+  it('a JSON syntax error in a .json rig names the file (and line and column where JSON.parse gives a position)', async () => {
     const f = write('broken.json', '{\n "dome": {\n  "radius": 2,\n }\n}\n');
-    const line = expectUserError(skyfold('probe', f, '--pixel', '1,1'));
+    const line = expectUserError(await skyfold('probe', f, '--pixel', '1,1'));
     expect(line).toMatch(/^skyfold: broken\.json: line 4, column 2: JSON syntax error: /);
   });
 
-  it('a missing file', () => {
-    expect(expectUserError(skyfold('probe', 'nowhere.yaml', '--pixel', '1,1'))).toBe('skyfold: nowhere.yaml: cannot read the rig file: no such file');
+  it('a missing file', async () => {
+    expect(expectUserError(await skyfold('probe', 'nowhere.yaml', '--pixel', '1,1'))).toBe('skyfold: nowhere.yaml: cannot read the rig file: no such file');
   });
 
-  it('a bad --pixel value names the option and what was expected', () => {
-    if (!existsSync(join(dir, 'rig.yaml'))) skyfold('init', '-o', 'rig.yaml');
-    const line = expectUserError(skyfold('probe', 'rig.yaml', '--pixel', '960'));
+  it('a bad --pixel value names the option and what was expected', async () => {
+    if (!existsSync(join(dir, 'rig.yaml'))) await skyfold('init', '-o', 'rig.yaml');
+    const line = expectUserError(await skyfold('probe', 'rig.yaml', '--pixel', '960'));
     expect(line).toContain('--pixel');
     expect(line).toContain('expected X,Y (two numbers), got "960"');
   });
 
-  it('a YAML syntax error gives "line N, column M"', () => {
+  it('a YAML syntax error gives "line N, column M"', async () => {
     const f = write('broken.yaml', 'dome:\n  radius: [1\nmirror: {}\n');
-    const line = expectUserError(skyfold('probe', f, '--pixel', '1,1'));
+    const line = expectUserError(await skyfold('probe', f, '--pixel', '1,1'));
     expect(line).toMatch(/^skyfold: broken\.yaml: /);
     expect(line).toContain('YAML syntax error');
     expect(line).toMatch(/line \d+, column \d+/);

@@ -4,36 +4,32 @@
  * The example session in fixtures/demo-measurements.yaml was made from a "true" rig written in its
  * header; the fit must find that rig again.
  */
-import { spawnSync } from 'node:child_process';
-import { existsSync, mkdtempSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
-import { tmpdir } from 'node:os';
+import { existsSync, readFileSync, writeFileSync } from 'node:fs';
 import { join } from 'node:path';
-import { afterAll, afterEach, beforeEach, describe, expect, it, vi } from 'vitest';
+import { beforeEach, describe, expect, it } from 'vitest';
 import sharp from 'sharp';
 import { parse } from 'yaml';
 import { angleBetween, DEG, RAD, rigFromDocument, Tracer, type Rig } from '@skyfold/warp-core';
-import { main } from '@skyfold/warp-cli';
+import { DEMO_MEASUREMENTS, DEMO_RIG, skyfold, spawnSkyfold, tempDir } from './support.js';
 
-const ROOT = join(import.meta.dirname, '..');
-const RIG = join(ROOT, 'fixtures/demo-rig.yaml');
-const MEASUREMENTS = join(ROOT, 'fixtures/demo-measurements.yaml');
-const dir = mkdtempSync(join(tmpdir(), 'skyfold-fit-'));
-afterAll(() => rmSync(dir, { recursive: true, force: true }));
+const RIG = DEMO_RIG;
+const MEASUREMENTS = DEMO_MEASUREMENTS;
+const dir = tempDir('fit');
 
 let stdout = '';
 let stderr = '';
 beforeEach(() => {
   stdout = '';
   stderr = '';
-  vi.spyOn(process.stdout, 'write').mockImplementation((c: string | Uint8Array) => ((stdout += String(c)), true));
-  vi.spyOn(process.stderr, 'write').mockImplementation((c: string | Uint8Array) => ((stderr += String(c)), true));
-});
-afterEach(() => {
-  vi.restoreAllMocks();
-  process.exitCode = undefined;
 });
 
-const run = (...args: string[]) => main(['node', 'skyfold', ...args]);
+/** Runs skyfold in-process; its output is added to `stdout` and `stderr`. */
+async function run(...args: string[]): Promise<number | null> {
+  const r = await skyfold(args);
+  stdout += r.stdout;
+  stderr += r.stderr;
+  return r.code;
+}
 const tmp = (name: string) => join(dir, name);
 const loadRigFile = (path: string): Rig => rigFromDocument(parse(readFileSync(path, 'utf8')));
 
@@ -172,9 +168,9 @@ describe('skyfold fit', () => {
     expect(k.parameters['projector.lensShift'].stderr[1]).toBeNull();
   });
 
-  it('runs as a user runs it (the real binary)', () => {
-    const r = spawnSync(process.execPath, [join(ROOT, 'packages/warp-cli/bin/skyfold.js'), 'fit', RIG, MEASUREMENTS], { encoding: 'utf8' });
-    expect(r.status).toBe(0);
+  it('runs as a user runs it (the real binary)', async () => {
+    const r = await spawnSkyfold(['fit', RIG, MEASUREMENTS]).done;
+    expect(r.code).toBe(0);
     expect(r.stdout).toContain('misfit after:');
     expect(r.stderr).toBe('');
   });

@@ -22,12 +22,9 @@
  *
  * Skipped, with a note, when Debian's /usr/bin/chromium is absent or cannot create a WebGL 2 context.
  */
-import { execFile } from 'node:child_process';
 import { existsSync, mkdtempSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { extname, join } from 'node:path';
-import { fileURLToPath } from 'node:url';
-import { promisify } from 'node:util';
 import { gunzipSync } from 'node:zlib';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import sharp from 'sharp';
@@ -42,10 +39,9 @@ import {
   type WarpMesh,
 } from '@skyfold/warp-core';
 import { loadRig, readGlb } from '@skyfold/warp-cli';
+import { DEMO_RIG, ROOT, skyfold } from './support.js';
 
-const ROOT = fileURLToPath(new URL('..', import.meta.url));
-const BIN = join(ROOT, 'node_modules/.bin/skyfold');
-const RIG = join(ROOT, 'fixtures/demo-rig.yaml');
+const RIG = DEMO_RIG;
 const CHROMIUM = '/usr/bin/chromium';
 const HAVE_CHROMIUM = existsSync(CHROMIUM);
 if (!HAVE_CHROMIUM) console.warn(`playback test skipped: no browser at ${CHROMIUM} (Debian's "chromium" package runs it)`);
@@ -289,8 +285,11 @@ describe.skipIf(!HAVE_CHROMIUM)("playback: the .glb in three.js (headless Chromi
 
   beforeAll(async () => {
     dir = mkdtempSync(join(tmpdir(), 'skyfold-playback-'));
-    // The mesh exactly as an operator bakes it: the real binary, the grid of its own choosing.
-    const bake = promisify(execFile)(BIN, ['bake', RIG, '-o', 'mesh.glb', '--json'], { cwd: dir });
+    // The mesh exactly as an operator bakes it: the program's own command line, the grid of its own choosing.
+    const bake = skyfold(['bake', RIG, '-o', 'mesh.glb', '--json'], { cwd: dir }).then((r) => {
+      if (r.code !== 0) throw new Error(`skyfold bake: exit ${r.code}: ${r.stderr}`);
+      return r;
+    });
     const launch = chromium.launch({
       executablePath: CHROMIUM,
       args: [

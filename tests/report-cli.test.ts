@@ -1,48 +1,35 @@
 /**
- * `skyfold report` and `skyfold plan` end to end, the real binary run as a user runs it: the files, the
+ * `skyfold report` and `skyfold plan` as a user runs them, in-process on temporary files: the files, the
  * --json keys, the HTML page opened in headless Chromium (no console errors, every picture loaded),
  * and bad input refused with exit 2.
  */
-import { execFile } from 'node:child_process';
 import { existsSync, mkdtempSync, readFileSync, rmSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
-import { fileURLToPath, pathToFileURL } from 'node:url';
-import { promisify } from 'node:util';
-import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { pathToFileURL } from 'node:url';
+import { beforeAll, describe, expect, it } from 'vitest';
 import { chromium } from 'playwright-core';
 import { parse } from 'yaml';
+import { FIXTURES, skyfold as runSkyfold, tempDir, type Run } from './support.js';
 
-const ROOT = fileURLToPath(new URL('..', import.meta.url));
-const BIN = join(ROOT, 'node_modules/.bin/skyfold');
-const POOR = join(ROOT, 'fixtures/poor-placement.yaml');
+const POOR = join(FIXTURES, 'poor-placement.yaml');
 const CHROMIUM = '/usr/bin/chromium';
 const HAVE_CHROMIUM = existsSync(CHROMIUM);
 if (!HAVE_CHROMIUM) console.warn(`report page test skipped: no browser at ${CHROMIUM} (Debian's "chromium" package provides it)`);
-const run = promisify(execFile);
 
-async function skyfold(cwd: string, ...args: string[]): Promise<{ code: number; stdout: string; stderr: string }> {
-  try {
-    const { stdout, stderr } = await run(BIN, args, { cwd, maxBuffer: 1 << 26 });
-    return { code: 0, stdout, stderr };
-  } catch (e) {
-    const err = e as { code?: number; stdout?: string; stderr?: string };
-    return { code: typeof err.code === 'number' ? err.code : -1, stdout: err.stdout ?? '', stderr: err.stderr ?? '' };
-  }
+function skyfold(cwd: string, ...args: string[]): Promise<Run> {
+  return runSkyfold(args, { cwd });
 }
 
-let dir: string;
+const dir = tempDir('report');
 let json: Record<string, any>;
 
 beforeAll(async () => {
-  dir = mkdtempSync(join(tmpdir(), 'skyfold-report-'));
   expect((await skyfold(dir, 'init', '-o', 'demo.yaml')).code).toBe(0);
   const r = await skyfold(dir, 'report', 'demo.yaml', '-o', 'out', '--rays', '20000', '--json');
   expect(r.code, r.stderr).toBe(0);
   json = JSON.parse(r.stdout);
 });
-
-afterAll(() => rmSync(dir, { recursive: true, force: true }));
 
 describe('skyfold report', () => {
   it('prints every figure under stable keys and writes the files', () => {

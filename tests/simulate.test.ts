@@ -1,38 +1,22 @@
 /**
- * The round trip through the real binary: `skyfold simulate` of `skyfold warp` of a dome master F
+ * The round trip through the program (run in-process): `skyfold simulate` of `skyfold warp` of a dome master F
  * must give F back over the lit part of the dome, up to the resolution the projector has there.
  * A 480 × 300 copy of the demo rig and 512² dome masters keep it quick.
  */
-import { spawn } from 'node:child_process';
-import { mkdirSync, mkdtempSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
-import { tmpdir } from 'node:os';
+import { mkdirSync, writeFileSync } from 'node:fs';
 import { join } from 'node:path';
-import { fileURLToPath } from 'node:url';
 import sharp from 'sharp';
-import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { beforeAll, describe, expect, it } from 'vitest';
 import { gridCard, smoothCard, srgbToLinear, type ImageBuffer } from '@skyfold/warp-core';
+import { demoRigText, skyfold, tempDir } from './support.js';
 
-const ROOT = fileURLToPath(new URL('..', import.meta.url));
-const BIN = join(ROOT, 'node_modules', '.bin', 'skyfold');
 const PROJ: [number, number] = [480, 300];
 const N = 512;
 /** Pixels of the lit region's edge left out of the comparisons (bilinear footprints straddle it). */
 const ERODE = 3;
 
-function skyfold(args: string[], cwd: string): Promise<{ code: number | null; stdout: string; stderr: string }> {
-  const child = spawn(BIN, args, { cwd, env: { ...process.env, CI: 'true' }, stdio: ['ignore', 'pipe', 'pipe'] });
-  let stdout = '';
-  let stderr = '';
-  child.stdout.on('data', (b: Buffer) => (stdout += b.toString()));
-  child.stderr.on('data', (b: Buffer) => (stderr += b.toString()));
-  return new Promise((resolve, reject) => {
-    child.on('error', reject);
-    child.on('close', (code) => resolve({ code, stdout, stderr }));
-  });
-}
-
 async function ok(args: string[]): Promise<void> {
-  const r = await skyfold(args, work);
+  const r = await skyfold(args, { cwd: work });
   if (r.code !== 0) throw new Error(`skyfold ${args.join(' ')} → exit ${r.code}: ${r.stderr}`);
 }
 
@@ -90,18 +74,14 @@ function psnr(a: Uint8Array, b: Uint8Array, mask: Uint8Array): number {
   return 10 * Math.log10((255 * 255) / (se / n));
 }
 
-let work: string;
+const work = tempDir('simulate');
 let rig: string;
 /** What simulate marks as lit at N²: a full-white projector frame seen with geometry only. */
 let lit: Uint8Array;
 
 beforeAll(async () => {
-  work = mkdtempSync(join(tmpdir(), 'skyfold-simulate-'));
-  const text = readFileSync(join(ROOT, 'fixtures', 'demo-rig.yaml'), 'utf8');
-  const small = text.replace(/resolution:\s*\[\s*\d+\s*,\s*\d+\s*\]/, `resolution: [${PROJ[0]}, ${PROJ[1]}]`);
-  if (small === text) throw new Error('fixtures/demo-rig.yaml: no projector resolution line to shrink');
   rig = join(work, 'rig.yaml');
-  writeFileSync(rig, small);
+  writeFileSync(rig, demoRigText(PROJ));
   mkdirSync(join(work, 'cards'));
   await writePng(join(work, 'cards', 'smooth.png'), smoothCard(N));
   await writePng(join(work, 'cards', 'grid.png'), gridCard(N));
@@ -111,10 +91,6 @@ beforeAll(async () => {
     ok(['simulate', rig, join(work, 'white.png'), '-o', join(work, 'seen-white.png'), '--size', String(N), '--brightness', 'none']),
   ]);
   lit = litMask(await readRgb(join(work, 'seen-white.png')));
-});
-
-afterAll(() => {
-  if (work) rmSync(work, { recursive: true, force: true });
 });
 
 describe('simulate(warp(F)) ≈ F over the lit dome', () => {

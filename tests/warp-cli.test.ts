@@ -1,29 +1,20 @@
 /**
- * `skyfold warp` end to end: the real binary, spawned as a user runs it, on small frames in temporary
- * folders. A 480 × 300 copy of the demo rig and 512² dome masters keep each run well under a second.
+ * `skyfold warp` as a user runs it, on small frames in temporary folders: in-process, except where only
+ * a process will do (signals, a kill, shards run at once, a shell pipe), which spawn the real binary.
+ * A 480 × 300 copy of the demo rig and 512² dome masters keep each run well under a second.
  */
-import { spawn, spawnSync, type ChildProcess } from 'node:child_process';
-import { copyFileSync, existsSync, mkdirSync, mkdtempSync, readdirSync, readFileSync, rmSync, symlinkSync, writeFileSync } from 'node:fs';
-import { tmpdir } from 'node:os';
+import { spawn, spawnSync } from 'node:child_process';
+import { copyFileSync, existsSync, mkdirSync, readdirSync, readFileSync, rmSync, symlinkSync, writeFileSync } from 'node:fs';
 import { join } from 'node:path';
-import { fileURLToPath } from 'node:url';
 import { crc32, deflateSync } from 'node:zlib';
 import sharp from 'sharp';
-import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { beforeAll, describe, expect, it } from 'vitest';
 import { BAKE_DEFAULTS, REMAP_DEFAULTS, createImageLike, pixelMapFromRig, remap, smoothCard, starField, type ImageBuffer, type RemapMap } from '@skyfold/warp-core';
 import { loadRig } from '@skyfold/warp-cli';
+import { BIN, ROOT, collect, demoRigText, skyfold as runSkyfold, spawnSkyfold, tempDir, waitFor, type Run } from './support.js';
 
-const ROOT = fileURLToPath(new URL('..', import.meta.url));
-const BIN = join(ROOT, 'node_modules', '.bin', 'skyfold');
 const MANIFEST = '.skyfold-warp.jsonl';
 const PROJ: [number, number] = [480, 300];
-
-interface Run {
-  code: number | null;
-  signal: NodeJS.Signals | null;
-  stdout: Buffer;
-  stderr: string;
-}
 
 interface Summary {
   done: number;
@@ -35,23 +26,9 @@ interface Summary {
   seconds: number;
 }
 
-function collect(child: ChildProcess, input?: Buffer): Promise<Run> {
-  const out: Buffer[] = [];
-  let err = '';
-  child.stdout?.on('data', (b: Buffer) => out.push(b));
-  child.stderr?.on('data', (b: Buffer) => (err += b.toString()));
-  if (child.stdin) {
-    child.stdin.on('error', () => {}); // the child may exit before reading everything
-    child.stdin.end(input);
-  }
-  return new Promise((resolve, reject) => {
-    child.on('error', reject);
-    child.on('close', (code, signal) => resolve({ code, signal, stdout: Buffer.concat(out), stderr: err }));
-  });
-}
-
+/** skyfold in-process, in `cwd`, with `input` on standard input. */
 function skyfold(args: string[], cwd: string, input?: Buffer): Promise<Run> {
-  return collect(spawn(BIN, args, { cwd, env: { ...process.env, CI: 'true' } }), input);
+  return runSkyfold(args, { cwd, input });
 }
 
 function summaryOf(r: Run): Summary {
@@ -89,19 +66,7 @@ async function decodesFully(path: string): Promise<boolean> {
   }
 }
 
-function waitFor(pred: () => boolean, timeoutMs: number): Promise<boolean> {
-  const t0 = Date.now();
-  return new Promise((resolve) => {
-    const tick = () => {
-      if (pred()) resolve(true);
-      else if (Date.now() - t0 > timeoutMs) resolve(false);
-      else setTimeout(tick, 5);
-    };
-    tick();
-  });
-}
-
-let work: string;
+const work = tempDir('warp-cli');
 let rig: string;
 
 /** A folder of `count` distinct star-field dome masters named `${prefix}${i}.png`. */
@@ -132,16 +97,8 @@ async function copyOfShow(name: string, count: number): Promise<string> {
 
 beforeAll(() => {
   if (!existsSync(join(ROOT, 'packages', 'warp-cli', 'dist', 'main.js'))) throw new Error('build first: npx tsc -b');
-  work = mkdtempSync(join(tmpdir(), 'skyfold-warp-cli-'));
-  const text = readFileSync(join(ROOT, 'fixtures', 'demo-rig.yaml'), 'utf8');
-  const small = text.replace(/resolution:\s*\[\s*\d+\s*,\s*\d+\s*\]/, `resolution: [${PROJ[0]}, ${PROJ[1]}]`);
-  if (small === text) throw new Error('fixtures/demo-rig.yaml: no projector resolution line to shrink');
   rig = join(work, 'rig.yaml');
-  writeFileSync(rig, small);
-});
-
-afterAll(() => {
-  if (work) rmSync(work, { recursive: true, force: true });
+  writeFileSync(rig, demoRigText(PROJ));
 });
 
 describe('skyfold warp: folders, names and formats', () => {
@@ -320,8 +277,8 @@ describe('skyfold warp: crash safety and resume', () => {
   it('a run killed with SIGKILL leaves only complete frames; the rerun finishes only what is missing', async () => {
     const dir = await show('show12');
     const out = join(work, 'kill-out');
-    const child = spawn(BIN, ['warp', rig, dir, '-o', out, '--jobs', '1', '--json'], { cwd: work, env: { ...process.env, CI: 'true' } });
-    const closed = collect(child);
+    // the real binary, spawned: only a process can be killed
+    const { child, done: closed } = spawnSkyfold(['warp', rig, dir, '-o', out, '--jobs', '1', '--json'], { cwd: work });
     const seen = await waitFor(() => existsSync(out) && outputs(out).length >= 2, 30_000);
     child.kill('SIGKILL');
     const killed = await closed;
@@ -349,8 +306,8 @@ describe('skyfold warp: crash safety and resume', () => {
     it(`SIGINT (--jobs ${jobs}) stops with exit 130 and leaves only complete frames, no temporary files`, async () => {
       const dir = await show('show12');
       const out = join(work, `int${jobs}-out`);
-      const child = spawn(BIN, ['warp', rig, dir, '-o', out, '--jobs', jobs], { cwd: work, env: { ...process.env, CI: 'true' } });
-      const closed = collect(child);
+      // the real binary, spawned: the signal goes to a process of its own
+      const { child, done: closed } = spawnSkyfold(['warp', rig, dir, '-o', out, '--jobs', jobs], { cwd: work });
       expect(await waitFor(() => existsSync(out) && outputs(out).length >= 1, 30_000)).toBe(true);
       child.kill('SIGINT');
       const r = await closed;
@@ -402,7 +359,8 @@ describe('skyfold warp: crash safety and resume', () => {
     const one = await skyfold(['warp', rig, dir, '-o', single, '--json'], work);
     expect(one.code, one.stderr).toBe(0);
     const shared = join(work, 'shard-shared');
-    const runs = await Promise.all(['1/3', '2/3', '3/3'].map((k) => skyfold(['warp', rig, dir, '-o', shared, '--shard', k, '--jobs', '1', '--json'], work)));
+    // three processes at once, as three machines would run them: the real binary, spawned
+    const runs = await Promise.all(['1/3', '2/3', '3/3'].map((k) => spawnSkyfold(['warp', rig, dir, '-o', shared, '--shard', k, '--jobs', '1', '--json'], { cwd: work }).done));
     for (const r of runs) expect(r.code, r.stderr).toBe(0);
     expect(runs.map((r) => summaryOf(r).done)).toEqual([3, 2, 2]);
     expect(outputs(shared)).toEqual(outputs(single));
@@ -432,15 +390,15 @@ describe('skyfold warp --raw-in: raw video pipes', () => {
     const r8 = await skyfold(['warp', rig, '--raw-in', '256x256'], work, Buffer.concat([bytes(a), bytes(b)]));
     expect(r8.code, r8.stderr).toBe(0);
     const frame = PROJ[0] * PROJ[1] * 3;
-    expect(r8.stdout.length).toBe(2 * frame);
-    expect(r8.stdout.subarray(0, frame).equals(libraryWarp(a))).toBe(true);
-    expect(r8.stdout.subarray(frame).equals(libraryWarp(b))).toBe(true);
+    expect(r8.stdoutBytes.length).toBe(2 * frame);
+    expect(r8.stdoutBytes.subarray(0, frame).equals(libraryWarp(a))).toBe(true);
+    expect(r8.stdoutBytes.subarray(frame).equals(libraryWarp(b))).toBe(true);
 
     const deep = smoothCard(256, true); // Uint16Array: little-endian bytes on the hosts we run on
     const r16 = await skyfold(['warp', rig, '--raw-in', '256x256:rgb48le'], work, bytes(deep));
     expect(r16.code, r16.stderr).toBe(0);
-    expect(r16.stdout.length).toBe(2 * frame);
-    expect(r16.stdout.equals(libraryWarp(deep))).toBe(true);
+    expect(r16.stdoutBytes.length).toBe(2 * frame);
+    expect(r16.stdoutBytes.equals(libraryWarp(deep))).toBe(true);
   });
 
   it('a stream that ends inside a frame is an error (exit 2, one line)', async () => {

@@ -1,4 +1,5 @@
 /** Plain-text tables and numbers for people; JSON output goes straight through JSON.stringify. */
+import { writeOut } from './io/run-context.js';
 
 export function table(header: string[], rows: string[][]): string {
   const widths = header.map((h, i) => rows.reduce((w, r) => Math.max(w, (r[i] ?? '').length), h.length));
@@ -12,5 +13,5 @@ export function fixed(x: number, digits: number): string {
 }
 
 export function printJson(value: unknown): void {
-  process.stdout.write(JSON.stringify(value) + '\n');
+  writeOut(JSON.stringify(value) + '\n');
 }

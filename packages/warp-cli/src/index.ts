@@ -1,5 +1,5 @@
 /** @skyfold/warp-cli: the `skyfold` program, and the mesh files and rig loading it is built on. */
-export { buildProgram, main } from './main.js';
+export { buildProgram, main, run, type RunIO } from './main.js';
 export { loadRig, parseDocumentText, type LoadedRig } from './io/document-file.js';
 export { decodeMesh, encodeMesh, formatFromPath, MESH_FORMATS, type MeshFormat } from './export/index.js';
 export { readGlb, writeGlb } from './export/glb.js';

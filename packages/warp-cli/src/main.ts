@@ -1,4 +1,4 @@
-/** The `skyfold` command: builds the program, runs it, and turns user errors into one line and exit 2. */
+/** The `skyfold` program: builds it, runs it on given streams, and turns user errors into one line and exit 2. */
 import { Command, CommanderError } from 'commander';
 import { registerBake } from './commands/bake.js';
 import { registerInit } from './commands/init.js';
@@ -11,7 +11,10 @@ import { registerPattern } from './commands/pattern.js';
 import { registerReport } from './commands/report.js';
 import { registerPlan } from './commands/plan.js';
 import { UserError } from './errors.js';
+import { runContext, withRunContext, writeErr, writeOut, type RunIO } from './io/run-context.js';
 import { VERSION } from './version.js';
+
+export type { RunIO } from './io/run-context.js';
 
 export function buildProgram(): Command {
   const program = new Command('skyfold')
@@ -19,7 +22,11 @@ export function buildProgram(): Command {
     .version(VERSION)
     .showSuggestionAfterError(true)
     .exitOverride()
-    .configureOutput({ outputError: (str, write) => write(str.split('\n')[0] + '\n') });
+    .configureOutput({
+      writeOut: (str) => writeOut(str),
+      writeErr: (str) => writeErr(str),
+      outputError: (str, write) => write(str.split('\n')[0] + '\n'),
+    });
   registerInit(program);
   registerProbe(program);
   registerLocate(program);
@@ -34,24 +41,37 @@ export function buildProgram(): Command {
   return program;
 }
 
-/** Runs the CLI; resolves to the exit code (never throws for user errors). */
-export async function main(argv: string[]): Promise<number> {
+/** Parses and runs one command line; resolves to the exit code (never throws for user errors). */
+async function runProgram(args: string[]): Promise<number> {
   const program = buildProgram();
   try {
-    await program.parseAsync(argv);
-    return typeof process.exitCode === 'number' ? process.exitCode : 0;
+    await program.parseAsync(args, { from: 'user' });
+    return runContext().exitCode;
   } catch (e) {
     if (e instanceof CommanderError) {
       if (e.code === 'commander.helpDisplayed' || e.code === 'commander.version' || e.code === 'commander.help') return 0;
       return 2;
     }
     if (e instanceof UserError) {
-      process.stderr.write(`skyfold: ${e.message}\n`);
+      writeErr(`skyfold: ${e.message}\n`);
       return e.exitCode;
     }
     const err = e as Error;
-    process.stderr.write(`skyfold: internal error: ${err?.message ?? String(e)}\n`);
-    if (process.env.SKYFOLD_DEBUG) process.stderr.write(`${err?.stack}\n`);
+    writeErr(`skyfold: internal error: ${err?.message ?? String(e)}\n`);
+    if (runContext().env.SKYFOLD_DEBUG) writeErr(`${err?.stack}\n`);
     return 3;
   }
+}
+
+/**
+ * Runs skyfold with the arguments after the command name (`['probe', 'rig.yaml', '--json']`) on the
+ * given streams, folder and environment (each defaulting to the process's own); resolves to the exit code.
+ */
+export async function run(args: string[], io: Partial<RunIO> = {}): Promise<number> {
+  return (await withRunContext(io, () => runProgram(args))).value;
+}
+
+/** The binary's entry: `argv` as in `process.argv` (node, script, then the arguments). */
+export function main(argv: string[] = process.argv): Promise<number> {
+  return run(argv.slice(2));
 }

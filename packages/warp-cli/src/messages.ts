@@ -1,8 +1,10 @@
 /** Messages to standard error. */
+import { writeErr } from './io/run-context.js';
+
 export function warn(message: string): void {
-  process.stderr.write(`skyfold: warning: ${message}\n`);
+  writeErr(`skyfold: warning: ${message}\n`);
 }
 
 export function info(message: string): void {
-  process.stderr.write(`${message}\n`);
+  writeErr(`${message}\n`);
 }

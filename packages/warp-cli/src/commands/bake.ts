@@ -8,6 +8,7 @@ import { encodeMesh, formatFromPath, MESH_FORMATS, type MeshFormat } from '../ex
 import { printJson } from '../format.js';
 import { collect, parseNumberIn, parsePositiveInt } from '../options.js';
 import { VERSION } from '../version.js';
+import { writeOut } from '../io/run-context.js';
 
 function parseGrid(s: string): [number, number] {
   const m = /^\s*(\d+)\s*[xX×]\s*(\d+)\s*$/.exec(s);
@@ -103,6 +104,6 @@ export function registerBake(program: Command): void {
         ...result.notes.map((n) => `note            ${n}`),
         ...targets.map((t) => `wrote           ${t.path} (${t.format})`),
       ];
-      process.stdout.write(lines.join('\n') + '\n');
+      writeOut(lines.join('\n') + '\n');
     });
 }

@@ -27,6 +27,7 @@ import { refuseToOverwrite, writeOutputFile } from '../io/output-file.js';
 import { UserError } from '../errors.js';
 import { fixed, printJson, table } from '../format.js';
 import { warn } from '../messages.js';
+import { writeOut } from '../io/run-context.js';
 
 interface FitCliOptions {
   output?: string;
@@ -258,6 +259,6 @@ export function registerFit(program: Command): void {
       );
       if (result.worst) out.push(`\nworst: ${result.worst.field} (${result.worst.label}), ${fixed(Math.abs(result.worst.normalized), 2)} sigma`);
       if (opts.output) out.push(`wrote ${opts.output}`);
-      process.stdout.write(out.join('\n') + '\n');
+      writeOut(out.join('\n') + '\n');
     });
 }

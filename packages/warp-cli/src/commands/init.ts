@@ -3,6 +3,7 @@ import { Option, type Command } from 'commander';
 import { starterRigText } from '../demo-rig.js';
 import { refuseToOverwrite, writeOutputFile } from '../io/output-file.js';
 import { printJson } from '../format.js';
+import { writeOut } from '../io/run-context.js';
 
 export function registerInit(program: Command): void {
   program
@@ -17,12 +18,12 @@ export function registerInit(program: Command): void {
       const text = starterRigText(opts.units);
       if (!opts.output) {
         if (opts.json) printJson({ rig: text });
-        else process.stdout.write(text);
+        else writeOut(text);
         return;
       }
       refuseToOverwrite(opts.output, opts.force);
       writeOutputFile(opts.output, text);
       if (opts.json) printJson({ file: opts.output, units: opts.units });
-      else process.stdout.write(`wrote ${opts.output} (units: ${opts.units}); edit it with your measurements, then try: skyfold probe ${opts.output} --pixel 960,600\n`);
+      else writeOut(`wrote ${opts.output} (units: ${opts.units}); edit it with your measurements, then try: skyfold probe ${opts.output} --pixel 960,600\n`);
     });
 }

@@ -5,6 +5,7 @@ import { readRig } from '../io/document-file.js';
 import { fixed, printJson, table } from '../format.js';
 import { collect, parseNumberPair } from '../options.js';
 import { InvalidArgumentError } from 'commander';
+import { writeOut } from '../io/run-context.js';
 
 function parseDirection(s: string): [number, number] {
   const [az, alt] = parseNumberPair(s, 'AZ,ALT (azimuth and altitude in degrees)');
@@ -32,6 +33,6 @@ export function registerLocate(program: Command): void {
         return;
       }
       const rows = results.map((r) => [fixed(r.azimuth, 3), fixed(r.altitude, 3), r.pixel ? `${fixed(r.pixel[0], 3)}, ${fixed(r.pixel[1], 3)}` : '-', 'reason' in r ? String(r.reason) : '']);
-      process.stdout.write(table(['azimuth', 'altitude', 'projector pixel x, y', 'note'], rows) + '\n');
+      writeOut(table(['azimuth', 'altitude', 'projector pixel x, y', 'note'], rows) + '\n');
     });
 }

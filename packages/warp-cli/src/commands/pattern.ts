@@ -29,6 +29,7 @@ import { UserError } from '../errors.js';
 import { fixed, printJson } from '../format.js';
 import { warn } from '../messages.js';
 import { collect, parseNumberIn, parseNumberPair, parsePositiveInt } from '../options.js';
+import { writeOut } from '../io/run-context.js';
 
 async function writePng(path: string, img: ImageBuffer, force: boolean | undefined): Promise<void> {
   refuseToOverwrite(path, force);
@@ -136,7 +137,7 @@ export function registerPattern(program: Command): void {
         }
         await writePng(opts.output, img, opts.force);
         if (opts.json) printJson({ file: opts.output, width: img.width, height: img.height, warped: Boolean(rig), fov: fovDeg });
-        else process.stdout.write(`wrote ${opts.output} (${img.width} × ${img.height}${rig ? `, warped for ${opts.warp}` : ', dome master'})\n`);
+        else writeOut(`wrote ${opts.output} (${img.width} × ${img.height}${rig ? `, warped for ${opts.warp}` : ', dome master'})\n`);
       },
     );
 
@@ -222,7 +223,7 @@ export function registerPattern(program: Command): void {
           const note = e.source === 'pixel' ? '' : ` (placed for ${e.source})`;
           lines.push(`  - {pixel: [${e.marker.x}, ${e.marker.y}], ${where}}   # marker ${k + 1}${note}${p === null ? ' - misses the mirror in this rig' : ''}`);
         });
-        process.stdout.write(lines.join('\n') + '\n');
+        writeOut(lines.join('\n') + '\n');
       },
     );
 }

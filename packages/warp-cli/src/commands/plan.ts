@@ -9,6 +9,7 @@ import { UserError } from '../errors.js';
 import { printJson, table } from '../format.js';
 import { collect, parsePositiveInt } from '../options.js';
 import { VERSION } from '../version.js';
+import { setExitCode, writeOut } from '../io/run-context.js';
 
 interface PlanCliOptions {
   vary?: string[];
@@ -97,14 +98,14 @@ export function registerPlan(program: Command): void {
           notes: result.notes,
           file: wrote,
         });
-        if (!best) process.exitCode = 1;
+        if (!best) setExitCode(1);
         return;
       }
       const lines = [planSummary(result, rig.units), ''];
       if (!result.current.feasible) lines.push(`note: the current rig breaks a bound: ${result.current.violations.join('; ')}`);
       for (const n of result.notes) lines.push(`note: ${n}`);
       lines.push(wrote ? `wrote ${wrote} (candidate #1)` : 'no placement found; nothing written');
-      process.stdout.write(lines.join('\n') + '\n');
-      if (!best) process.exitCode = 1;
+      writeOut(lines.join('\n') + '\n');
+      if (!best) setExitCode(1);
     });
 }

@@ -4,6 +4,7 @@ import { formatLength, RAD, Tracer } from '@skyfold/warp-core';
 import { readRig } from '../io/document-file.js';
 import { fixed, printJson, table } from '../format.js';
 import { collect, parseNumberPair } from '../options.js';
+import { writeOut } from '../io/run-context.js';
 
 export function registerProbe(program: Command): void {
   program
@@ -37,6 +38,6 @@ export function registerProbe(program: Command): void {
             ]
           : [`${r.pixel[0]}, ${r.pixel[1]}`, r.hit, '-', '-', '-', '-'],
       );
-      process.stdout.write(table(['pixel', 'hit', 'fisheye u, v', 'azimuth', 'altitude', `dome point (x, y, z)`], rows) + '\n');
+      writeOut(table(['pixel', 'hit', 'fisheye u, v', 'azimuth', 'altitude', `dome point (x, y, z)`], rows) + '\n');
     });
 }

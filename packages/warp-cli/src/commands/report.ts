@@ -14,6 +14,7 @@ import { UserError } from '../errors.js';
 import { printJson } from '../format.js';
 import { parsePositiveInt } from '../options.js';
 import { VERSION } from '../version.js';
+import { writeOut } from '../io/run-context.js';
 
 /** The figures as a person reads them, one line each. */
 export function reportSummary(f: ReportFigures): string[] {
@@ -81,6 +82,6 @@ export function registerReport(program: Command): void {
         printJson({ ...analysis.figures, files });
         return;
       }
-      process.stdout.write([...reportSummary(analysis.figures), ...files.map((f) => `wrote           ${f}`)].join('\n') + '\n');
+      writeOut([...reportSummary(analysis.figures), ...files.map((f) => `wrote           ${f}`)].join('\n') + '\n');
     });
 }

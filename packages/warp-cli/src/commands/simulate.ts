@@ -7,6 +7,7 @@ import { writeOutputFile } from '../io/output-file.js';
 import { UserError } from '../errors.js';
 import { printJson } from '../format.js';
 import { parsePositiveInt } from '../options.js';
+import { writeOut } from '../io/run-context.js';
 
 export function registerSimulate(program: Command): void {
   program
@@ -45,6 +46,6 @@ export function registerSimulate(program: Command): void {
       }
       const summary = { output: opts.output, size: opts.size, coveredFraction: covered / inside, brightness: opts.brightness };
       if (opts.json) printJson(summary);
-      else process.stdout.write(`wrote ${opts.output} (${opts.size}x${opts.size}); ${(summary.coveredFraction * 100).toFixed(1)}% of the dome master's circle is lit\n`);
+      else writeOut(`wrote ${opts.output} (${opts.size}x${opts.size}); ${(summary.coveredFraction * 100).toFixed(1)}% of the dome master's circle is lit\n`);
     });
 }

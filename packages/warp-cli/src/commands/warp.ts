@@ -18,6 +18,7 @@ import { loadMapSource, type MapSettings, type MapSource } from '../warp/map-sou
 import { FramePool } from '../warp/pool.js';
 import { Progress } from '../warp/progress.js';
 import { runRawPipe, parseRawSpec } from '../warp/raw-pipe.js';
+import { runContext, setExitCode, writeErr } from '../io/run-context.js';
 
 interface WarpOptions {
   output?: string;
@@ -187,7 +188,7 @@ async function warpFrames(map: MapSource, mapSettings: MapSettings, inputs: stri
     }
     const remapMap: RemapMap | undefined = size ? map.build(size, mapSettings) : undefined;
     const settings: WarpSettings = { filter: opts.filter, maxPixels: opts.maxPixels, sourceSize: size ?? [0, 0], encode: { quality: opts.quality } };
-    const progress = new Progress(jobs.length, process.stderr, !opts.json);
+    const progress = new Progress(jobs.length, runContext().stderr, !opts.json);
     const finish = (job: (typeof jobs)[number], o: FrameOutcome) => {
       if (o.ok) {
         done++;
@@ -199,19 +200,17 @@ async function warpFrames(map: MapSource, mapSettings: MapSettings, inputs: stri
       for (const j of jobs) finish(j, { id: j.id, ok: false, reason: 'unreadable image: no size in its header' });
     } else {
       const threads = Math.max(1, Math.min(opts.jobs ?? availableParallelism(), jobs.length));
+      // a signal stops the scheduling; frames in flight on workers are dropped, one on this thread finishes
       let stopping = false;
-      const pool = threads > 1 ? new FramePool(remapMap, settings, threads) : undefined;
-      const onSigint = () => {
+      let stop: () => void = () => {};
+      const stopped = new Promise<void>((resolve) => (stop = resolve));
+      const onSignal = () => {
         stopping = true;
-        void (pool?.close() ?? Promise.resolve()).then(() => {
-          removeOwnPartials(outDir, tag);
-          progress.finish();
-          process.stderr.write(`skyfold: stopped; ${done} frames finished this run. Run the same command again to finish the rest.\n`);
-          process.exit(130);
-        });
+        stop();
       };
-      process.once('SIGINT', onSigint);
-      process.once('SIGTERM', onSigint);
+      const pool = threads > 1 ? new FramePool(remapMap, settings, threads) : undefined;
+      process.once('SIGINT', onSignal);
+      process.once('SIGTERM', onSignal);
       try {
         if (pool) {
           let next = 0;
@@ -225,9 +224,8 @@ async function warpFrames(map: MapSource, mapSettings: MapSettings, inputs: stri
               });
               running.add(p);
             }
-            if (running.size > 0) await Promise.race(running);
+            if (running.size > 0) await Promise.race([...running, stopped]);
           }
-          await pool.close();
         } else {
           const scratch = {};
           for (const job of jobs) {
@@ -236,9 +234,16 @@ async function warpFrames(map: MapSource, mapSettings: MapSettings, inputs: stri
           }
         }
       } finally {
-        process.removeListener('SIGINT', onSigint);
-        process.removeListener('SIGTERM', onSigint);
+        process.removeListener('SIGINT', onSignal);
+        process.removeListener('SIGTERM', onSignal);
+        await pool?.close();
         removeOwnPartials(outDir, tag);
+      }
+      if (stopping) {
+        progress.finish();
+        writeErr(`skyfold: stopped; ${done} frames finished this run. Run the same command again to finish the rest.\n`);
+        setExitCode(130);
+        return;
       }
     }
     progress.finish();
@@ -250,7 +255,7 @@ async function warpFrames(map: MapSource, mapSettings: MapSettings, inputs: stri
     info(`${done} warped, ${skipped} already done, ${failures.length} failed of ${frames.length} frames in ${seconds.toFixed(1)} s -> ${opts.output}`);
     for (const f of failures) info(`  failed: ${f.input}: ${f.reason}`);
   }
-  if (failures.length > 0) process.exitCode = 1;
+  if (failures.length > 0) setExitCode(1);
 }
 
 export { InvalidArgumentError };

@@ -1,4 +1,5 @@
 /** Progress for long runs: a bar on a terminal, plain lines otherwise. */
+import { runContext } from '../io/run-context.js';
 
 function duration(s: number): string {
   if (!Number.isFinite(s)) return '?';
@@ -13,12 +14,12 @@ export class Progress {
   private lastDraw = 0;
   constructor(
     private readonly total: number,
-    private readonly stream: NodeJS.WriteStream = process.stderr,
+    private readonly stream: NodeJS.WritableStream & { isTTY?: boolean } = runContext().stderr,
     private readonly enabled = true,
   ) {}
 
   private get tty(): boolean {
-    return Boolean(this.stream.isTTY) && process.env.CI !== 'true';
+    return Boolean(this.stream.isTTY) && runContext().env.CI !== 'true';
   }
 
   /** A frame finished (ok or failed); `label` names it on plain output. */

@@ -4,6 +4,7 @@
  */
 import { remap, type ImageBuffer, type RemapFilter } from '@skyfold/warp-core';
 import { UserError } from '../errors.js';
+import { runContext } from '../io/run-context.js';
 import type { MapSettings, MapSource } from './map-source.js';
 import { DEFAULT_MAX_PIXELS } from '../io/image-codec.js';
 
@@ -66,7 +67,7 @@ export async function runRawPipe(
   s: MapSettings,
   spec: RawSpec,
   filter: RemapFilter,
-  streams: RawStreams = { input: process.stdin, output: process.stdout, log: process.stderr },
+  streams: RawStreams = { input: runContext().stdin, output: runContext().stdout, log: runContext().stderr },
 ): Promise<void> {
   const map = source.build([spec.width, spec.height], s);
   const bps = spec.format === 'rgb48le' ? 2 : 1;
