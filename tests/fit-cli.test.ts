@@ -135,7 +135,7 @@ describe('skyfold fit', () => {
 
     stderr = '';
     expect(await run('fit', RIG, MEASUREMENTS, '--free', 'mirror.centre')).toBe(2);
-    expect(stderr).toMatch(/^error: option '--free <list>' argument 'mirror.centre' is invalid\. expected one of mirror\.center, .*, got "mirror\.centre"; did you mean "mirror\.center"\?\n$/);
+    expect(stderr).toMatch(/^skyfold: --free: expected one of mirror\.center, .*, got "mirror\.centre"; did you mean "mirror\.center"\?\n$/);
 
     stderr = '';
     expect(await run('fit', RIG, tmp('missing.yaml'))).toBe(2);

@@ -10,3 +10,5 @@ export class UserError extends Error {
 export const EXIT_OK = 0;
 export const EXIT_PARTIAL = 1;
 export const EXIT_BAD_INPUT = 2;
+/** A defect in skyfold: no input, however malformed, may reach it. */
+export const EXIT_INTERNAL = 3;

@@ -10,7 +10,7 @@ import { registerFit } from './commands/fit.js';
 import { registerPattern } from './commands/pattern.js';
 import { registerReport } from './commands/report.js';
 import { registerPlan } from './commands/plan.js';
-import { UserError } from './errors.js';
+import { EXIT_BAD_INPUT, EXIT_INTERNAL, EXIT_OK, UserError } from './errors.js';
 import { runContext, withRunContext, writeErr, writeOut, type RunIO } from './io/run-context.js';
 import { VERSION } from './version.js';
 
@@ -24,8 +24,9 @@ export function buildProgram(): Command {
     .exitOverride()
     .configureOutput({
       writeOut: (str) => writeOut(str),
-      writeErr: (str) => writeErr(str),
-      outputError: (str, write) => write(str.split('\n')[0] + '\n'),
+      // errors are worded by usageError(), so commander writes only help here: help goes to standard output
+      writeErr: (str) => writeOut(str),
+      outputError: () => {},
     });
   registerInit(program);
   registerProbe(program);
@@ -41,6 +42,28 @@ export function buildProgram(): Command {
   return program;
 }
 
+/**
+ * Commander's message for a bad command line, in skyfold's words and on one line:
+ * "error: option '--filter <filter>' argument 'x' is invalid. Allowed choices are a, b." becomes
+ * "--filter: expected one of a, b, got "x"", and "(Did you mean --json?)" joins the line.
+ */
+export function usageError(message: string): string {
+  const [first, ...rest] = message.replace(/^error: /, '').split('\n');
+  let line = first;
+  const option = /^option '(?:-\w, )?(--[\w-]+)[^']*' argument '(.*)' is invalid\. (.*)$/s.exec(first);
+  const argument = /^command-argument value '(.*)' is invalid for argument '(.*)'\. (.*)$/s.exec(first);
+  const name = option ? option[1] : argument ? `<${argument[2]}>` : undefined;
+  const value = option ? option[2] : argument?.[1];
+  const reason = option ? option[3] : argument?.[3];
+  if (name !== undefined && reason !== undefined) {
+    const choices = /^Allowed choices are (.*)\.$/.exec(reason);
+    line = `${name}: ${choices ? `expected one of ${choices[1]}, got "${value}"` : reason}`;
+  }
+  const suggestion = rest.map((l) => /^\(Did you mean (.*)\?\)$/.exec(l.trim())).find((m) => m);
+  if (suggestion) line += `; did you mean ${suggestion[1]}?`;
+  return line;
+}
+
 /** Parses and runs one command line; resolves to the exit code (never throws for user errors). */
 async function runProgram(args: string[]): Promise<number> {
   const program = buildProgram();
@@ -49,8 +72,11 @@ async function runProgram(args: string[]): Promise<number> {
     return runContext().exitCode;
   } catch (e) {
     if (e instanceof CommanderError) {
-      if (e.code === 'commander.helpDisplayed' || e.code === 'commander.version' || e.code === 'commander.help') return 0;
-      return 2;
+      if (e.code === 'commander.helpDisplayed' || e.code === 'commander.version') return EXIT_OK;
+      // `skyfold help` asked for it; bare `skyfold` (or `skyfold pattern`) is a command line without a command
+      if (e.code === 'commander.help') return e.exitCode === 0 ? EXIT_OK : EXIT_BAD_INPUT;
+      writeErr(`skyfold: ${usageError(e.message)}\n`);
+      return EXIT_BAD_INPUT;
     }
     if (e instanceof UserError) {
       writeErr(`skyfold: ${e.message}\n`);
@@ -59,7 +85,7 @@ async function runProgram(args: string[]): Promise<number> {
     const err = e as Error;
     writeErr(`skyfold: internal error: ${err?.message ?? String(e)}\n`);
     if (runContext().env.SKYFOLD_DEBUG) writeErr(`${err?.stack}\n`);
-    return 3;
+    return EXIT_INTERNAL;
   }
 }
 

@@ -1,20 +1,16 @@
 /** `skyfold bake`: the warp mesh, with its measured accuracy, in open formats. */
-import { InvalidArgumentError, Option, type Command } from 'commander';
+import { Option, type Command } from 'commander';
 import { BAKE_DEFAULTS, bakeMesh, rigToDocument, type BakeOptions, type BakeResult } from '@skyfold/warp-core';
 import { readRig } from '../io/document-file.js';
 import { writeOutputFile } from '../io/output-file.js';
 import { UserError } from '../errors.js';
 import { encodeMesh, formatFromPath, MESH_FORMATS, type MeshFormat } from '../export/index.js';
 import { printJson } from '../format.js';
-import { collect, parseNumberIn, parsePositiveInt } from '../options.js';
+import { collect, parseNumberIn, parsePositiveInt, parseSize } from '../options.js';
 import { VERSION } from '../version.js';
 import { writeOut } from '../io/run-context.js';
 
-function parseGrid(s: string): [number, number] {
-  const m = /^\s*(\d+)\s*[xX×]\s*(\d+)\s*$/.exec(s);
-  if (!m || Number(m[1]) < 2 || Number(m[2]) < 2) throw new InvalidArgumentError(`expected COLSxROWS with at least 2 each (e.g. 321x201), got "${s}"`);
-  return [Number(m[1]), Number(m[2])];
-}
+const parseGrid = parseSize({ min: 2, what: 'COLSxROWS with at least 2 each (e.g. 321x201)' });
 
 /** The command's options: the core's bake settings plus where and how to write. */
 export interface BakeCliOptions extends Pick<BakeOptions, 'tolerance' | 'masterSize' | 'brightness' | 'brightnessFloor' | 'feather'> {

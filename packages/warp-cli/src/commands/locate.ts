@@ -3,22 +3,15 @@ import type { Command } from 'commander';
 import { DEG, locateDirection, Tracer } from '@skyfold/warp-core';
 import { readRig } from '../io/document-file.js';
 import { fixed, printJson, table } from '../format.js';
-import { collect, parseNumberPair } from '../options.js';
-import { InvalidArgumentError } from 'commander';
+import { collect, parseDirection } from '../options.js';
 import { writeOut } from '../io/run-context.js';
-
-function parseDirection(s: string): [number, number] {
-  const [az, alt] = parseNumberPair(s, 'AZ,ALT (azimuth and altitude in degrees)');
-  if (alt < -90 || alt > 90) throw new InvalidArgumentError(`expected an altitude from -90 to 90 degrees, got "${s}"`);
-  return [az, alt];
-}
 
 export function registerLocate(program: Command): void {
   program
     .command('locate')
     .description('find the projector pixel that lights a dome direction (azimuth, altitude in degrees from the content eye)')
     .argument('<rig>', 'rig file (YAML or JSON)')
-    .requiredOption('--direction <az,alt>', 'dome direction in degrees (repeatable): azimuth 0 = front, 90 = right; altitude 0 = springline, 90 = zenith', collect(parseDirection))
+    .requiredOption('--direction <az,alt>', 'dome direction in degrees (repeatable): azimuth 0 = front, 90 = right; altitude 0 = springline, 90 = zenith', collect((s) => parseDirection(s)))
     .option('--json', 'machine-readable output')
     .addHelpText('after', '\nExamples:\n  skyfold locate rig.yaml --direction 0,90\n  skyfold locate rig.yaml --direction 0,30 --direction 90,30 --json')
     .action((rigPath: string, opts: { direction: [number, number][]; json?: boolean }) => {

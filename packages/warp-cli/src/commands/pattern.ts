@@ -4,7 +4,7 @@
  * crosshairs at projector pixels for observation sessions, with a measurement-file template.
  */
 import { extname } from 'node:path';
-import { InvalidArgumentError, Option, type Command } from 'commander';
+import { Option, type Command } from 'commander';
 import {
   DEG,
   DOME_PATTERN_DEFAULTS,
@@ -28,7 +28,7 @@ import { refuseToOverwrite, writeOutputFile } from '../io/output-file.js';
 import { UserError } from '../errors.js';
 import { fixed, printJson } from '../format.js';
 import { warn } from '../messages.js';
-import { collect, parseNumberIn, parseNumberPair, parsePositiveInt } from '../options.js';
+import { collect, parseDirection, parseNumberIn, parseNumberPair, parsePositiveInt, parseSize } from '../options.js';
 import { writeOut } from '../io/run-context.js';
 
 async function writePng(path: string, img: ImageBuffer, force: boolean | undefined): Promise<void> {
@@ -41,18 +41,11 @@ function checkPngPath(path: string): void {
 }
 
 function parseDot(text: string): PatternDot {
-  const [az, alt] = parseNumberPair(text, 'AZ,ALT (azimuth and altitude in degrees)');
-  if (alt < -90 || alt > 90) throw new InvalidArgumentError(`expected an altitude from -90 to 90 degrees, got "${text}"`);
+  const [az, alt] = parseDirection(text);
   return { azimuth: wrapDegrees(az) * DEG, altitude: alt * DEG };
 }
 
-function parseResolution(text: string): [number, number] {
-  const m = /^\s*(\d+)\s*[x×,]\s*(\d+)\s*$/.exec(text);
-  const w = m ? Number(m[1]) : NaN;
-  const h = m ? Number(m[2]) : NaN;
-  if (!(w > 0 && h > 0)) throw new InvalidArgumentError(`expected WIDTHxHEIGHT in pixels, e.g. 1920x1200, got "${text}"`);
-  return [w, h];
-}
+const parseResolution = parseSize({ min: 1, separators: ',', what: 'WIDTHxHEIGHT in pixels, e.g. 1920x1200' });
 
 type Target = { name: string; azimuth: number; altitude: number };
 
@@ -61,8 +54,7 @@ function parseTarget(text: string): Target {
   if (t === 'zenith') return { name: 'zenith', azimuth: 0, altitude: 90 };
   const rim = /^rim@(-?\d+(?:\.\d*)?)$/.exec(t);
   if (rim) return { name: t, azimuth: wrapDegrees(Number(rim[1])), altitude: 0 };
-  const [az, alt] = parseNumberPair(t, 'zenith, rim@AZ, or AZ,ALT in degrees');
-  if (alt < -90 || alt > 90) throw new InvalidArgumentError(`expected an altitude from -90 to 90 degrees, got "${text}"`);
+  const [az, alt] = parseDirection(t, 'zenith, rim@AZ, or AZ,ALT in degrees');
   return { name: `${az},${alt}`, azimuth: wrapDegrees(az), altitude: alt };
 }
 

@@ -8,7 +8,7 @@ import { BAKE_DEFAULTS, REMAP_DEFAULTS, type RemapFilter, type RemapMap } from '
 import { UserError } from '../errors.js';
 import { printJson } from '../format.js';
 import { info } from '../messages.js';
-import { parseNumberIn, parsePositiveInt } from '../options.js';
+import { asOptionParser, parseNumberIn, parsePositiveInt } from '../options.js';
 import { VERSION } from '../version.js';
 import { DEFAULT_MAX_PIXELS, FRAME_EXTENSION, FRAME_FORMATS, formatOfPath, readImageSize, type FrameFormat } from '../io/image-codec.js';
 import { expandInputs, parseFrameRange, parseShard, selectFrames, type Frame } from '../warp/inputs.js';
@@ -28,8 +28,8 @@ interface WarpOptions {
   brightness: number;
   brightnessFloor: number;
   feather: number;
-  frames?: string;
-  shard?: string;
+  frames?: [number, number];
+  shard?: [number, number];
   jobs?: number;
   flip?: boolean;
   rotate: string;
@@ -86,8 +86,8 @@ export function registerWarp(program: Command): void {
     .option('--brightness <s>', 'brightness compensation strength 0-1', parseNumberIn(0, 1), BAKE_DEFAULTS.brightness)
     .option('--brightness-floor <f>', 'lowest brightness factor', parseNumberIn(0, 1), BAKE_DEFAULTS.brightnessFloor)
     .option('--feather <deg>', 'soft edge width in degrees', parseNumberIn(0, 90), BAKE_DEFAULTS.feather)
-    .option('--frames <a-b>', 'only frames numbered A to B (the number in the file name, else the position from 1)')
-    .option('--shard <k/n>', 'only frame K of every N (K from 1), to split a show across machines')
+    .option('--frames <a-b>', 'only frames numbered A to B (the number in the file name, else the position from 1)', asOptionParser('--frames', parseFrameRange))
+    .option('--shard <k/n>', 'only frame K of every N (K from 1), to split a show across machines', asOptionParser('--shard', parseShard))
     .option('--jobs <n>', 'worker threads (default: the core count)', (s) => parsePositiveInt(s))
     .option('--flip', 'the content arrives mirrored left-right')
     .addOption(new Option('--rotate <deg>', 'the content arrives turned: degrees clockwise to turn it back').choices(['0', '90', '180', '270']).default('0'))
@@ -128,7 +128,7 @@ export function registerWarp(program: Command): void {
 async function warpFrames(map: MapSource, mapSettings: MapSettings, inputs: string[], opts: WarpOptions): Promise<void> {
   const t0 = performance.now();
   const all = expandInputs(inputs);
-  const frames = selectFrames(all, opts.frames ? parseFrameRange(opts.frames) : undefined, opts.shard ? parseShard(opts.shard) : undefined);
+  const frames = selectFrames(all, opts.frames, opts.shard);
   const outDir = resolve(opts.output!);
   try {
     mkdirSync(outDir, { recursive: true });
