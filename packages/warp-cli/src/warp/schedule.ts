@@ -1,0 +1,46 @@
+/** Runs a batch's jobs: on a pool of worker threads, or one after another on this thread. */
+import type { RemapMap } from '@skyfold/warp-core';
+import { runFrameJob, type FrameJob, type FrameOutcome, type WarpSettings } from './job.js';
+import { FramePool } from './pool.js';
+import type { StopSignal } from './stop-signal.js';
+
+/**
+ * Runs `jobs` on `threads` workers (this thread alone when 1), calling `finish` as each completes,
+ * until all are done or `stop` fires: frames in flight on workers are then dropped (the workers end),
+ * a frame on this thread is finished first.
+ */
+export async function runJobs<J extends FrameJob>(
+  jobs: J[],
+  map: RemapMap,
+  settings: WarpSettings,
+  threads: number,
+  stop: StopSignal,
+  finish: (job: J, outcome: FrameOutcome) => void,
+): Promise<void> {
+  if (threads <= 1) {
+    const scratch = {};
+    for (const job of jobs) {
+      if (stop.stopping) break;
+      finish(job, await runFrameJob(job, map, settings, scratch));
+    }
+    return;
+  }
+  const pool = new FramePool(map, settings, threads);
+  try {
+    let next = 0;
+    const running = new Set<Promise<void>>();
+    while ((next < jobs.length || running.size > 0) && !stop.stopping) {
+      while (next < jobs.length && pool.free > 0 && !stop.stopping) {
+        const job = jobs[next++];
+        const p: Promise<void> = pool.run(job).then((o) => {
+          running.delete(p);
+          if (!stop.stopping) finish(job, o);
+        });
+        running.add(p);
+      }
+      if (running.size > 0) await Promise.race([...running, stop.stopped]);
+    }
+  } finally {
+    await pool.close();
+  }
+}
