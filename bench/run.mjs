@@ -1,34 +1,178 @@
 #!/usr/bin/env node
-// `npm run bench`: every skyfold benchmark, measured side by side in one run, reported as ratios.
-// Figures go to standard output and bench-out/results.json. `--quick` for fewer repetitions.
-import { mkdirSync, writeFileSync } from 'node:fs';
-import { cpus, totalmem } from 'node:os';
-import { benchTrace } from './trace.mjs';
-import { benchRemap } from './remap.mjs';
-import { benchFrame } from './frame.mjs';
+// `npm run bench`: skyfold's speed, measured honestly on a shared machine.
+//
+// - Inputs: the demo rig's own per-pixel map (fixtures/demo-rig.yaml onto a 4096² dome master) and a
+//   deterministic show-like frame with detail everywhere (bench/show-frame.mjs).
+// - Every measurement runs in a process of its own (bench/measure.mjs, bench/opencv-remap.py), so
+//   no benchmark's JIT state, heap or caches leak into another's.
+// - Rounds are interleaved: each round runs every case once, in a rotated order, so that drift in
+//   the machine's load hits all cases alike. A figure is the median over rounds of each process's
+//   median, with the range over rounds; a ratio is taken within each round, then summarised alike.
+//
+// Writes bench-out/results.json and rewrites the README's performance table from it
+// (scripts/bench-table.mjs). `--quick` takes fewer rounds and writes bench-out/results-quick.json
+// only, leaving the README alone.
+import { spawn, spawnSync } from 'node:child_process';
+import { existsSync, mkdirSync, readFileSync, statSync, writeFileSync } from 'node:fs';
+import { totalmem } from 'node:os';
+import { join } from 'node:path';
+import { fileURLToPath } from 'node:url';
+import sharp from 'sharp';
+import { parse } from 'yaml';
+import { rigFromDocument, pixelMapFromRig, remap } from '@skyfold/warp-core';
+import { showFrame } from './show-frame.mjs';
+import { RESULTS_SCHEMA, writeReadmeTable } from '../scripts/bench-table.mjs';
 
+const ROOT = fileURLToPath(new URL('..', import.meta.url));
+const PYTHON = '/usr/bin/python3';
+const SOURCE = 4096;
+const FRAME_SEED = 1;
 const quick = process.argv.includes('--quick');
-const machine = `${cpus()[0]?.model ?? 'unknown CPU'}, ${cpus().length} cores, ${(totalmem() / 2 ** 30).toFixed(0)} GiB, Node ${process.version}`;
-console.log(`skyfold bench on ${machine}${quick ? ' (quick)' : ''}\n`);
+const ROUNDS = quick ? 2 : 5;
+/** Timed runs per process: the whole-frame cases take a second each, the kernels a fraction. */
+const repsOf = (name) => (quick ? 2 : name.startsWith('frame-') ? 3 : 5);
 
-const trace = await benchTrace({ quick });
-console.log(`trace     ${trace.frame}: ${trace.medianMs.toFixed(1)} ms per frame = ${(trace.raysPerSecond / 1e6).toFixed(1)} million rays/s on one core (aim: >= 10)`);
+function machine() {
+  let cpu = 'unknown';
+  try {
+    cpu = /^model name\s*:\s*(.*)$/m.exec(readFileSync('/proc/cpuinfo', 'utf8'))?.[1]?.trim() ?? cpu;
+  } catch {}
+  const n = spawnSync('nproc', { encoding: 'utf8' });
+  return { cpu, nproc: Number(n.stdout?.trim()) || null, node: process.version, memoryGiB: Math.round(totalmem() / 2 ** 30) };
+}
 
-// the whole-frame figures first, on a fresh heap; then the kernels against OpenCV
-const frame = await benchFrame({ quick });
-const remapRows = await benchRemap({ quick });
-for (const r of remapRows.rows) {
-  if (r.skipped) {
-    console.log(`remap     ${r.name}: skipped (${r.skipped})`);
-    continue;
+/** The bench's inputs in WORK: the frame (PNG and raw), the demo rig's map, reference outputs. */
+async function prepare(work) {
+  mkdirSync(work, { recursive: true });
+  const stamp = join(work, 'frame.stamp');
+  const want = `show-frame ${SOURCE} seed ${FRAME_SEED} v1`;
+  let src;
+  if (existsSync(stamp) && readFileSync(stamp, 'utf8') === want && existsSync(join(work, 'src.u8'))) {
+    const b = readFileSync(join(work, 'src.u8'));
+    src = { width: SOURCE, height: SOURCE, channels: 3, data: new Uint8Array(b.buffer, b.byteOffset, b.byteLength) };
+  } else {
+    src = showFrame(SOURCE, FRAME_SEED);
+    writeFileSync(join(work, 'src.u8'), src.data);
+    await sharp(src.data, { raw: { width: SOURCE, height: SOURCE, channels: 3 } }).png({ compressionLevel: 6 }).toFile(join(work, 'frame.png'));
+    writeFileSync(stamp, want);
   }
-  let line = `remap     ${r.name}: ${r.ms.toFixed(1)} ms (${r.case})`;
-  if (r.ratio !== undefined) line += ` -> skyfold bilinear / OpenCV = ${r.ratio.toFixed(2)}x (aim: <= 1.5x)`;
-  console.log(line);
+  const rig = rigFromDocument(parse(readFileSync(join(ROOT, 'fixtures/demo-rig.yaml'), 'utf8')));
+  const map = pixelMapFromRig(rig, [SOURCE, SOURCE]);
+  const mask = new Float32Array(map.gain.length);
+  let lit = 0;
+  for (let k = 0; k < mask.length; k++) if (map.gain[k] > 0) (mask[k] = 1), lit++;
+  const bytes = (a) => new Uint8Array(a.buffer, a.byteOffset, a.byteLength);
+  writeFileSync(join(work, 'map-x.f32'), bytes(map.x));
+  writeFileSync(join(work, 'map-y.f32'), bytes(map.y));
+  writeFileSync(join(work, 'map-gain.f32'), bytes(map.gain));
+  writeFileSync(join(work, 'map-mask.f32'), bytes(mask));
+  const litFraction = lit / mask.length;
+  writeFileSync(join(work, 'map.json'), JSON.stringify({ width: map.width, height: map.height, source: SOURCE, litFraction }));
+  writeFileSync(join(work, 'ours-bilinear.u8'), remap(src, { ...map, gain: mask }, { filter: 'bilinear' }).data);
+  writeFileSync(join(work, 'warped-area.u8'), remap(src, map, { filter: 'area' }).data);
+  return { map: { width: map.width, height: map.height, source: SOURCE, litFraction }, pngMiB: statSync(join(work, 'frame.png')).size / 2 ** 20 };
 }
-for (const r of frame) {
-  console.log(`frame     ${r.filter}: decode+warp+encode ${r.fullMs.toFixed(0)} ms vs decode+encode ${r.ioMs.toFixed(0)} ms = ${r.ratio.toFixed(2)}x (aim: <= 1.2x; warp alone ${r.remapMs.toFixed(0)} ms)`);
+
+/** Runs one case in its own process; resolves to its parsed JSON line. */
+function measure(name, work) {
+  const [cmd, args] = name.startsWith('opencv-')
+    ? [PYTHON, [join(ROOT, 'bench/opencv-remap.py'), name.slice(7), work, String(repsOf(name))]]
+    : [process.execPath, [join(ROOT, 'bench/measure.mjs'), name, work, String(repsOf(name))]];
+  return new Promise((resolve) => {
+    let out = '';
+    let err = '';
+    let child;
+    try {
+      child = spawn(cmd, args, { stdio: ['ignore', 'pipe', 'pipe'] });
+    } catch (e) {
+      resolve({ case: name, skipped: `${cmd} failed: ${e.message}` });
+      return;
+    }
+    child.stdout.on('data', (d) => (out += d));
+    child.stderr.on('data', (d) => (err += d));
+    child.on('error', (e) => resolve({ case: name, skipped: `${cmd} failed: ${e.message}` }));
+    child.on('close', (code) => {
+      const line = out.trim().split('\n').pop();
+      if (code === 0 && line) resolve(JSON.parse(line));
+      else resolve({ case: name, failed: `exit ${code}: ${err.trim().split('\n').pop() ?? ''}` });
+    });
+  });
 }
-mkdirSync(new URL('../bench-out/', import.meta.url), { recursive: true });
-writeFileSync(new URL('../bench-out/results.json', import.meta.url), JSON.stringify({ machine, date: new Date().toISOString(), trace, remap: remapRows, frame }, null, 2) + '\n');
-console.log('\nwrote bench-out/results.json');
+
+const median = (a) => {
+  const s = [...a].sort((p, q) => p - q);
+  return s.length % 2 ? s[s.length >> 1] : (s[s.length / 2 - 1] + s[s.length / 2]) / 2;
+};
+const summary = (values) => ({ median: median(values), min: Math.min(...values), max: Math.max(...values), values });
+
+const CASES = ['trace', 'map', 'bilinear', 'bilinear-gain', 'area', 'opencv-float', 'opencv-fixed', 'frame-io', 'frame-bilinear', 'frame-area'];
+
+const m = machine();
+console.log(`skyfold bench on ${m.cpu}, nproc ${m.nproc}, Node ${m.node}${quick ? ' (quick)' : ''}`);
+const work = join(ROOT, 'bench-out/work');
+const inputs = await prepare(work);
+console.log(`inputs: demo rig map ${inputs.map.width}x${inputs.map.height} onto ${SOURCE}², ${(inputs.map.litFraction * 100).toFixed(0)}% lit; show-like frame PNG ${inputs.pngMiB.toFixed(1)} MiB`);
+
+const perRound = Object.fromEntries(CASES.map((c) => [c, []]));
+const skipped = {};
+const extra = {};
+for (let r = 0; r < ROUNDS; r++) {
+  const order = CASES.map((_, i) => CASES[(i + r) % CASES.length]);
+  for (const name of order) {
+    const res = await measure(name, work);
+    if (res.skipped || res.failed) {
+      skipped[name] = res.skipped ?? res.failed;
+      if (res.failed) console.error(`bench: ${name} failed: ${res.failed}`);
+      continue;
+    }
+    perRound[name].push(res);
+    if (res.version) extra.opencv = res.version;
+    if (res.agreement) extra.agreement = res.agreement;
+  }
+  console.log(`round ${r + 1}/${ROUNDS} done`);
+}
+
+const ms = (name) => perRound[name].map((res) => median(res.times));
+const have = (...names) => names.every((n) => perRound[n].length === ROUNDS);
+const ratio = (a, b) => ms(a).map((v, i) => v / ms(b)[i]);
+const rows = [];
+const row = (id, what, unit, values, aim) => rows.push({ id, what, unit, ...summary(values), ...(aim ? { aim } : {}) });
+const { width: W, height: H } = inputs.map;
+if (have('trace')) row('trace', `whole-frame trace, ${W} × ${H}, one core`, 'Mrays/s', ms('trace').map((t) => (W * H) / t / 1000), '≥ 10');
+if (have('map')) {
+  row('map-time', `per-pixel map from the rig onto ${SOURCE}² (trace, mask, brightness), one core`, 'ms', ms('map'), '');
+  row('map-memory', 'peak memory of the process building that map', 'MiB', perRound.map.map((r) => r.maxRssMiB), '≤ 250');
+}
+if (have('bilinear')) row('bilinear', `bilinear remap, ${SOURCE}² RGB8 → ${W} × ${H}, mask-only map, one thread`, 'ms', ms('bilinear'));
+if (have('bilinear', 'opencv-float')) row('vs-opencv-float', 'bilinear / OpenCV cv2.remap INTER_LINEAR, float maps', '×', ratio('bilinear', 'opencv-float'), '');
+if (have('bilinear', 'opencv-fixed')) row('vs-opencv-fixed', 'bilinear / OpenCV cv2.remap INTER_LINEAR, fixed-point maps (cv2.convertMaps)', '×', ratio('bilinear', 'opencv-fixed'), '≤ 1.5');
+if (have('opencv-fixed')) row('opencv-fixed', 'OpenCV cv2.remap, fixed-point maps, one thread', 'ms', ms('opencv-fixed'));
+if (have('bilinear-gain', 'bilinear')) row('gain-cost', 'bilinear with the rig\'s brightness gain (linear light) / mask only', '×', ratio('bilinear-gain', 'bilinear'));
+if (have('area', 'bilinear-gain')) row('area-vs-bilinear', '`area` remap (default) / bilinear, both with gain', '×', ratio('area', 'bilinear-gain'), '≤ 2.5');
+if (have('frame-io')) row('frame-io', `decode the ${SOURCE}² PNG + encode the ${W} × ${H} PNG (level 6), no warp`, 'ms', ms('frame-io'));
+if (have('frame-bilinear', 'frame-io')) row('frame-bilinear', 'whole frame with `bilinear` / decode + encode alone', '×', ratio('frame-bilinear', 'frame-io'), '≤ 1.2');
+if (have('frame-area', 'frame-io')) row('frame-area', 'whole frame with `area` / decode + encode alone', '×', ratio('frame-area', 'frame-io'), '');
+
+const results = {
+  schema: RESULTS_SCHEMA,
+  date: new Date().toISOString(),
+  quick,
+  machine: { ...m, ...(extra.opencv ? { opencv: extra.opencv } : {}) },
+  method: { rounds: ROUNDS, repsPerProcess: repsOf('bilinear'), repsPerFrameProcess: repsOf('frame-io'), processPerMeasurement: true, interleaved: true },
+  inputs: { rig: 'fixtures/demo-rig.yaml', ...inputs.map, frame: `bench/show-frame.mjs seed ${FRAME_SEED}`, framePngMiB: Number(inputs.pngMiB.toFixed(1)) },
+  rows,
+  skipped,
+  ...(extra.agreement ? { agreement: extra.agreement } : {}),
+};
+for (const r of rows) {
+  const f = (v) => (r.unit === '×' ? v.toFixed(2) : v.toFixed(r.unit === 'ms' || r.unit === 'MiB' ? 0 : 1));
+  console.log(`${r.id.padEnd(18)} ${f(r.median).padStart(7)} ${r.unit.padEnd(8)} (${f(r.min)}–${f(r.max)})${r.aim ? `  aim ${r.aim}` : ''}`);
+}
+for (const [k, why] of Object.entries(skipped)) console.log(`${k}: skipped (${why})`);
+const file = join(ROOT, quick ? 'bench-out/results-quick.json' : 'bench-out/results.json');
+writeFileSync(file, JSON.stringify(results, null, 2) + '\n');
+console.log(`\nwrote ${file.slice(ROOT.length)}`);
+if (!quick) {
+  writeReadmeTable(join(ROOT, 'README.md'), results);
+  console.log('rewrote the performance table in README.md');
+}

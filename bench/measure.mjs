@@ -1,0 +1,116 @@
+#!/usr/bin/env node
+// One measurement in a process of its own, so that no other benchmark's JIT feedback, heap or
+// cache state leaks into it: `node bench/measure.mjs CASE WORKDIR REPS` prints one JSON line,
+// { case, times: [ms, ...], maxRssMiB, baseRssMiB }. bench/run.mjs prepares WORKDIR (the demo rig's
+// map, the show-like frame) and spawns one of these per case and round, interleaved.
+//
+// Every case runs one untimed warm-up, then REPS timed repetitions; `map` runs cold, once, as
+// `skyfold warp` builds it, so that its peak memory is the build's own.
+import { readFileSync } from 'node:fs';
+import { join } from 'node:path';
+import sharp from 'sharp';
+import { parse } from 'yaml';
+import { rigFromDocument, pixelMapFromRig, remap, createImageLike, Tracer } from '@skyfold/warp-core';
+
+const [name, dir, repsText] = process.argv.slice(2);
+const reps = Number(repsText ?? 5);
+const RIG = new URL('../fixtures/demo-rig.yaml', import.meta.url);
+/** The PNG level skyfold writes by default (packages/warp-cli/src/io/image-codec.ts). */
+const PNG_LEVEL = 6;
+
+function loadRig() {
+  return rigFromDocument(parse(readFileSync(RIG, 'utf8')));
+}
+
+function f32(path) {
+  const b = readFileSync(path);
+  return new Float32Array(b.buffer, b.byteOffset, b.byteLength / 4);
+}
+
+function loadMap(kind) {
+  const info = JSON.parse(readFileSync(join(dir, 'map.json'), 'utf8'));
+  return { width: info.width, height: info.height, x: f32(join(dir, 'map-x.f32')), y: f32(join(dir, `map-y.f32`)), gain: f32(join(dir, `map-${kind}.f32`)) };
+}
+
+function loadSource() {
+  const info = JSON.parse(readFileSync(join(dir, 'map.json'), 'utf8'));
+  const b = readFileSync(join(dir, 'src.u8'));
+  return { width: info.source, height: info.source, channels: 3, data: new Uint8Array(b.buffer, b.byteOffset, b.byteLength) };
+}
+
+async function decode(path) {
+  const { data, info } = await sharp(path).raw().toBuffer({ resolveWithObject: true });
+  return { width: info.width, height: info.height, channels: info.channels, data: new Uint8Array(data.buffer, data.byteOffset, data.byteLength) };
+}
+
+function encode(img) {
+  return sharp(img.data, { raw: { width: img.width, height: img.height, channels: img.channels } }).png({ compressionLevel: PNG_LEVEL }).toBuffer();
+}
+
+/** Each case: setup once (untimed) → the function to time. */
+const CASES = {
+  // the whole-frame trace of the demo rig, float32 output, one core
+  trace: () => {
+    const tracer = new Tracer(loadRig());
+    return () => tracer.frameGrid({ float32: true });
+  },
+  // the per-pixel map onto a 4096² source as `skyfold warp` builds it from a rig (trace, mask, brightness)
+  map: () => {
+    const rig = loadRig();
+    return () => pixelMapFromRig(rig, [4096, 4096]);
+  },
+  // the kernels on the real map: mask only (gain 1 or 0, like cv2.remap) and with the rig's brightness gain
+  bilinear: () => remapCase('mask', 'bilinear'),
+  'bilinear-gain': () => remapCase('gain', 'bilinear'),
+  area: () => remapCase('gain', 'area'),
+  // a whole frame: decode the 4096² PNG, warp, encode the 1920×1200 PNG; and decode + encode alone
+  'frame-io': () => frameCase(null),
+  'frame-bilinear': () => frameCase('bilinear'),
+  'frame-area': () => frameCase('area'),
+};
+
+function remapCase(gainKind, filter) {
+  const src = loadSource();
+  const map = loadMap(gainKind);
+  const out = createImageLike(src, map.width, map.height);
+  return () => remap(src, map, { filter, out });
+}
+
+function frameCase(filter) {
+  const path = join(dir, 'frame.png');
+  const map = loadMap('gain');
+  let out;
+  if (!filter) {
+    // decode + encode alone encodes a warped frame of the same content, so the encoder does the same work
+    const still = { width: map.width, height: map.height, channels: 3, data: readFileSync(join(dir, 'warped-area.u8')) };
+    return async () => {
+      await decode(path);
+      return encode(still);
+    };
+  }
+  return async () => {
+    const src = await decode(path);
+    out ??= createImageLike(src, map.width, map.height);
+    remap(src, map, { filter, out });
+    return encode(out);
+  };
+}
+
+const setup = CASES[name];
+if (!setup) {
+  console.error(`measure: unknown case ${name}; one of ${Object.keys(CASES).join(', ')}`);
+  process.exit(2);
+}
+const baseRssMiB = process.memoryUsage().rss / 2 ** 20;
+const fn = setup();
+const cold = name === 'map';
+if (!cold) await fn();
+const times = [];
+for (let r = 0; r < (cold ? 1 : reps); r++) {
+  const t0 = performance.now();
+  await fn();
+  times.push(performance.now() - t0);
+}
+// ru_maxrss is in KiB on Linux (getrusage(2))
+const maxRssMiB = process.resourceUsage().maxRSS / 1024;
+process.stdout.write(JSON.stringify({ case: name, times, maxRssMiB, baseRssMiB }) + '\n');
