@@ -163,7 +163,7 @@ function errorAt(t: Tracer, mesh: WarpMesh, x: number, y: number, N: number): { 
 
 const cellLit = (m: WarpMesh, c: number, r: number) => {
   const k = r * m.cols + c;
-  return m.mask[k] > 0 && m.mask[k + 1] > 0 && m.mask[k + m.cols] > 0 && m.mask[k + m.cols + 1] > 0;
+  return m.mask[k] >= 0.5 && m.mask[k + 1] >= 0.5 && m.mask[k + m.cols] >= 0.5 && m.mask[k + m.cols + 1] >= 0.5;
 };
 /** True when every vertex within a few cells is lit: away from the mirror's silhouette and the content edge. */
 const interior = (m: WarpMesh, c: number, r: number, reach = 3) => {
@@ -171,7 +171,7 @@ const interior = (m: WarpMesh, c: number, r: number, reach = 3) => {
     for (let dc = -reach; dc <= reach + 1; dc++) {
       const rr = r + dr;
       const cc = c + dc;
-      if (rr < 0 || cc < 0 || rr >= m.rows || cc >= m.cols || !(m.mask[rr * m.cols + cc] > 0)) return false;
+      if (rr < 0 || cc < 0 || rr >= m.rows || cc >= m.cols || !(m.mask[rr * m.cols + cc] >= 0.5)) return false;
     }
   return true;
 };
@@ -342,7 +342,7 @@ describe('brightness factor and mask (DESIGN.md "Brightness")', () => {
     const rig = demoRig();
     const floor = 0.25;
     const { mesh, areaMax, brightnessMin, brightnessMax } = bakeMesh(rig, { grid: [97, 61], brightnessFloor: floor });
-    const lit = [...mesh.brightness].filter((_, k) => mesh.mask[k] > 0);
+    const lit = [...mesh.brightness].filter((_, k) => mesh.mask[k] >= 0.5);
     for (const b of lit) {
       expect(b).toBeGreaterThanOrEqual(floor - 1e-7);
       expect(b).toBeLessThanOrEqual(1);
@@ -356,14 +356,14 @@ describe('brightness factor and mask (DESIGN.md "Brightness")', () => {
     const area = domeAreaOnGrid(t, xs, ys);
     let checked = 0;
     for (let k = 0; k < area.length; k++) {
-      if (!(mesh.mask[k] > 0) || !Number.isFinite(area[k])) continue;
+      if (!(mesh.mask[k] >= 0.5) || !Number.isFinite(area[k])) continue;
       const expected = Math.min(1, Math.max(floor, area[k] / areaMax));
       expect(mesh.brightness[k]).toBeCloseTo(expected, 5);
       checked++;
     }
     expect(checked).toBeGreaterThan(1000);
     const off = bakeMesh(rig, { grid: [97, 61], brightness: 0 });
-    for (let k = 0; k < off.mesh.brightness.length; k++) if (off.mesh.mask[k] > 0) expect(off.mesh.brightness[k]).toBe(1);
+    for (let k = 0; k < off.mesh.brightness.length; k++) if (off.mesh.mask[k] >= 0.5) expect(off.mesh.brightness[k]).toBe(1);
     expect(off.brightnessMin).toBe(1);
   });
 
@@ -393,24 +393,42 @@ describe('brightness factor and mask (DESIGN.md "Brightness")', () => {
     expect(quantile(stray, 0.99) / quantile(used, 0.99)).toBeLessThan(1.001);
   });
 
-  it('mask 0 for mirror misses and for directions beyond the content fov, 1 elsewhere (no feather)', () => {
+  it('mask below 0.5 for mirror misses and beyond the content fov, 0.5 or more inside; 0 and 1 away from the edge (no feather)', () => {
     const rig = demoRig({ content: { fov: 150 } });
     const { mesh } = bakeMesh(rig, { grid: [65, 41] });
     const t = new Tracer(rig);
+    const lit = (c: number, r: number) => {
+      const h = t.pixel((c * mesh.width) / (mesh.cols - 1), (r * mesh.height) / (mesh.rows - 1));
+      return h.kind !== 'mirror-miss' && Math.hypot(h.fisheye[0] - 0.5, h.fisheye[1] - 0.5) <= 0.5;
+    };
+    // two cells from every vertex of the other state: beyond the ramp's half-width (a cell diagonal)
+    const farFromEdge = (c: number, r: number) => {
+      for (let dr = -2; dr <= 2; dr++)
+        for (let dc = -2; dc <= 2; dc++) {
+          const cc = c + dc;
+          const rr = r + dr;
+          if (cc >= 0 && rr >= 0 && cc < mesh.cols && rr < mesh.rows && lit(cc, rr) !== lit(c, r)) return false;
+        }
+      return true;
+    };
     const counts = { miss: 0, beyond: 0, lit: 0 };
     for (let r = 0; r < mesh.rows; r++) {
       for (let c = 0; c < mesh.cols; c++) {
         const k = r * mesh.cols + c;
         const h = t.pixel((c * mesh.width) / (mesh.cols - 1), (r * mesh.height) / (mesh.rows - 1));
+        const far = farFromEdge(c, r);
         if (h.kind === 'mirror-miss') {
           counts.miss++;
-          expect(mesh.mask[k]).toBe(0);
+          expect(mesh.mask[k]).toBeLessThan(0.5);
+          if (far) expect(mesh.mask[k]).toBe(0);
         } else if (Math.hypot(h.fisheye[0] - 0.5, h.fisheye[1] - 0.5) > 0.5 + 1e-9) {
           counts.beyond++;
-          expect(mesh.mask[k]).toBe(0);
+          expect(mesh.mask[k]).toBeLessThan(0.5);
+          if (far) expect(mesh.mask[k]).toBe(0);
         } else if (Math.hypot(h.fisheye[0] - 0.5, h.fisheye[1] - 0.5) < 0.5 - 1e-6) {
           counts.lit++;
-          expect(mesh.mask[k]).toBe(1);
+          expect(mesh.mask[k]).toBeGreaterThanOrEqual(0.5);
+          if (far) expect(mesh.mask[k]).toBe(1);
         }
         // every vertex keeps finite (u, v) so a GPU never samples junk
         expect(Number.isFinite(mesh.u[k]) && Number.isFinite(mesh.v[k])).toBe(true);
@@ -421,35 +439,40 @@ describe('brightness factor and mask (DESIGN.md "Brightness")', () => {
     expect(counts.lit).toBeGreaterThan(500);
   });
 
-  it('feather: values strictly between 0 and 1 near the edges, rising monotonely toward the inside', () => {
+  it('feather: the same ramp, wider — lit and unlit sides kept, values rising monotonely toward the inside', () => {
     const rig = demoRig();
     const hard = bakeMesh(rig, { grid: [129, 81] }).mesh;
-    const soft = bakeMesh(rig, { grid: [129, 81], feather: 4 }).mesh;
-    let partial = 0;
+    const soft = bakeMesh(rig, { grid: [129, 81], feather: 12 }).mesh; // about 60 px each side, three cell diagonals
+    let partialHard = 0;
+    let partialSoft = 0;
     for (let k = 0; k < soft.mask.length; k++) {
       expect(soft.mask[k]).toBeGreaterThanOrEqual(0);
       expect(soft.mask[k]).toBeLessThanOrEqual(1);
-      if (hard.mask[k] === 0) expect(soft.mask[k]).toBe(0); // the feather only takes light away
-      if (soft.mask[k] > 0 && soft.mask[k] < 1) partial++;
+      // the 0.5 level stays on the edge: a wider ramp dims the inside and lights the outside more
+      expect(soft.mask[k] >= 0.5).toBe(hard.mask[k] >= 0.5);
+      if (hard.mask[k] >= 0.5) expect(soft.mask[k]).toBeLessThanOrEqual(hard.mask[k] + 1e-6);
+      else expect(soft.mask[k]).toBeGreaterThanOrEqual(hard.mask[k] - 1e-6);
+      if (hard.mask[k] > 0 && hard.mask[k] < 1) partialHard++;
+      if (soft.mask[k] > 0 && soft.mask[k] < 1) partialSoft++;
     }
-    expect(partial).toBeGreaterThan(50);
-    // Along the middle row and the middle column of the lit area: from each end of the lit run inward,
+    expect(partialSoft).toBeGreaterThan(1.5 * partialHard);
+    // Along the middle row and the middle column: from each end of the run the ramp touches inward,
     // the mask never falls (to float rounding) and reaches 1 in the middle.
     const runs: number[][] = [];
     const midRow = Math.round(soft.rows / 2);
     runs.push(Array.from({ length: soft.cols }, (_, c) => midRow * soft.cols + c));
     let sumC = 0;
     let nC = 0;
-    for (let k = 0; k < hard.mask.length; k++) if (hard.mask[k] > 0) ((sumC += k % hard.cols), nC++);
+    for (let k = 0; k < hard.mask.length; k++) if (hard.mask[k] >= 0.5) ((sumC += k % hard.cols), nC++);
     const midCol = Math.round(sumC / nC);
     runs.push(Array.from({ length: soft.rows }, (_, r) => r * soft.cols + midCol));
     for (const line of runs) {
-      const litIdx = line.filter((k) => hard.mask[k] > 0);
+      const litIdx = line.filter((k) => soft.mask[k] > 0);
       expect(litIdx.length).toBeGreaterThan(10);
       const vals = litIdx.map((k) => soft.mask[k]);
       const peak = vals.indexOf(Math.max(...vals));
       expect(vals[peak]).toBe(1);
-      expect(vals[0]).toBeLessThan(1);
+      expect(vals[0]).toBeLessThan(0.5);
       expect(vals[vals.length - 1]).toBeLessThan(1);
       for (let i = 1; i <= peak; i++) expect(vals[i]).toBeGreaterThanOrEqual(vals[i - 1] - 1e-6);
       for (let i = vals.length - 2; i >= peak; i--) expect(vals[i]).toBeGreaterThanOrEqual(vals[i + 1] - 1e-6);

@@ -39,6 +39,7 @@ export function bakeSummary(r: BakeResult, files: string[]): Record<string, unkn
     cellsOverTolerance: a.overTolerance,
     worstAt: a.worstAt,
     triangles: a.triangles,
+    edge: r.edge,
     notes: r.notes,
   };
 }
@@ -55,7 +56,7 @@ export function registerBake(program: Command): void {
     .option('--master-size <n>', 'dome-master size the errors in dome-master pixels refer to', (s) => parsePositiveInt(s), BAKE_DEFAULTS.masterSize)
     .option('--brightness <s>', 'brightness compensation strength, 0 (off) to 1 (full)', parseNumberIn(0, 1), BAKE_DEFAULTS.brightness)
     .option('--brightness-floor <f>', 'lowest brightness factor, so no region goes black', parseNumberIn(0, 1), BAKE_DEFAULTS.brightnessFloor)
-    .option('--feather <deg>', 'soft edge width on the dome in degrees at the mirror rim and the content edge', parseNumberIn(0, 90), BAKE_DEFAULTS.feather)
+    .option('--feather <deg>', "width on the dome in degrees of the mask's ramp across the edge of the lit area (0 = the narrowest the grid allows)", parseNumberIn(0, 90), BAKE_DEFAULTS.feather)
     .option('--json', 'machine-readable summary')
     .addHelpText('after', '\nExamples:\n  skyfold bake rig.yaml -o mesh.glb\n  skyfold bake rig.yaml -o mesh.glb -o mesh.mpcdi -o mesh.csv --feather 2\n  skyfold bake rig.yaml -o mesh.glb --grid 321x201 --json')
     .action(async (rigPath: string, opts: BakeCliOptions) => {
@@ -96,6 +97,7 @@ export function registerBake(program: Command): void {
         `error, max      ${f(a.errorMaxProjector)} projector px   ${f(a.errorMaxPx)} dome-master px`,
         `as triangles    p99 ${f(a.triangles.errorP99Projector)}, max ${f(a.triangles.errorMaxProjector)} projector px (the two triangles per cell a GPU draws from the .glb)`,
         `tolerance       ${opts.tolerance} projector px; ${(a.overTolerance * 100).toFixed(2)}% of lit cells exceed it (${(a.triangles.overTolerance * 100).toFixed(2)}% as triangles)`,
+        `edge            mean ${f(result.edge.mean)}, p99 ${f(result.edge.p99)}, max ${f(result.edge.max)} projector px from the exact edge (the mask's 0.5 level on the two triangles per cell, ${result.edge.samples} samples)`,
         `brightness      ${result.brightnessMin.toFixed(3)} .. ${result.brightnessMax.toFixed(3)} (strength ${opts.brightness}, floor ${opts.brightnessFloor})`,
         ...result.notes.map((n) => `note            ${n}`),
         ...targets.map((t) => `wrote           ${t.path} (${t.format})`),

@@ -6,7 +6,8 @@
 import { DEG } from '../math.js';
 import type { Rig } from '../rig/model.js';
 import { allocGridOutput, Tracer, landsOnDome } from '../trace.js';
-import { brightnessFactor, contentVisible, domeAreaOnGrid, featherMask, fillUnlit, quantile, referenceArea } from './field.js';
+import { edgeRamp, edgeSegments, angularScaleAt, litTest, measureEdgePlacement, type EdgePlacement, type LitTest } from './edge.js';
+import { brightnessFactor, contentVisible, domeAreaOnGrid, fillUnlit, quantile, referenceArea } from './field.js';
 import { createMesh, type WarpMesh } from './mesh.js';
 
 export interface BakeOptions {
@@ -20,7 +21,7 @@ export interface BakeOptions {
   brightness: number;
   /** Lowest brightness factor. */
   brightnessFloor: number;
-  /** Soft edge width in degrees on the dome (0 = hard edge). */
+  /** Width in degrees on the dome of the mask's ramp across the edge (0 = the narrowest ramp the grid allows). */
   feather: number;
   /** Samples per cell side when measuring the error. */
   samplesPerCell: number;
@@ -73,7 +74,9 @@ export function interpolateCell(f: ArrayLike<number>, k00: number, cols: number,
 export interface BakeResult {
   mesh: WarpMesh;
   accuracy: MeshAccuracy;
-  /** Share of vertices that are lit (mask > 0). */
+  /** Where a player draws the edge of the lit area (the mask's 0.5 level) against the exact edge. */
+  edge: EdgePlacement;
+  /** Share of vertices that are lit (mask ≥ 0.5: inside the exact edge). */
   litFraction: number;
   brightnessMin: number;
   brightnessMax: number;
@@ -88,8 +91,11 @@ function vertexCoords(n: number, size: number): Float64Array {
   return Float64Array.from({ length: n }, (_, i) => (i * size) / (n - 1));
 }
 
-/** Builds the mesh for a given grid: (u, v) per vertex, brightness and mask. */
-export function buildMesh(tracer: Tracer, cols: number, rows: number, o: BakeOptions, areaMax: number, meta: Record<string, unknown> = {}): WarpMesh {
+/**
+ * Builds the mesh for a given grid: (u, v) per vertex, brightness, and the mask ramp across the exact
+ * edge (edge.ts); unlit vertices carry (u, v) and brightness from their lit neighbours.
+ */
+export function buildMesh(tracer: Tracer, cols: number, rows: number, o: BakeOptions, areaMax: number, meta: Record<string, unknown> = {}, lit: LitTest = litTest(tracer)): WarpMesh {
   const { width: W, height: H } = tracer.frame;
   const xs = vertexCoords(cols, W);
   const ys = vertexCoords(rows, H);
@@ -97,17 +103,19 @@ export function buildMesh(tracer: Tracer, cols: number, rows: number, o: BakeOpt
   const area = domeAreaOnGrid(tracer, xs, ys);
   const mesh = createMesh(cols, rows, W, H, meta);
   const n = cols * rows;
-  const lit = new Uint8Array(n);
+  const litAt = new Uint8Array(n);
   const traced = new Uint8Array(n);
   for (let k = 0; k < n; k++) {
     traced[k] = landsOnDome(g.kind[k]) ? 1 : 0;
-    lit[k] = contentVisible(tracer, g.u[k], g.v[k], g.kind[k]) ? 1 : 0;
-    mesh.brightness[k] = lit[k] ? brightnessFactor(area[k], areaMax, { strength: o.brightness, floor: o.brightnessFloor }) : 0;
+    litAt[k] = contentVisible(tracer, g.u[k], g.v[k], g.kind[k]) ? 1 : 0;
+    mesh.brightness[k] = litAt[k] ? brightnessFactor(area[k], areaMax, { strength: o.brightness, floor: o.brightnessFloor }) : 0;
   }
-  const mask = featherMask(g, tracer.rig.content.fov, o.feather * DEG, lit);
-  mesh.mask.set(mask);
+  const segments = edgeSegments(lit, xs, ys, litAt);
+  // 1% over the cell diagonal: every vertex of a triangle the edge crosses stays inside the ramp
+  const minHalfWidth = 1.01 * Math.hypot(W / (cols - 1), H / (rows - 1));
+  mesh.mask.set(edgeRamp(segments, xs, ys, litAt, { minHalfWidth, featherRad: o.feather * DEG, angularScale: o.feather > 0 ? angularScaleAt(tracer, lit) : undefined }));
   fillUnlit(cols, rows, traced, g.u, g.v);
-  fillUnlit(cols, rows, lit, mesh.brightness);
+  fillUnlit(cols, rows, litAt, mesh.brightness);
   mesh.u.set(g.u);
   mesh.v.set(g.v);
   return mesh;
@@ -149,7 +157,7 @@ export function measureAccuracy(tracer: Tracer, mesh: WarpMesh, masterSize: numb
       const v10 = v00 + 1;
       const v01 = v00 + cols;
       const v11 = v01 + 1;
-      if (!(mesh.mask[v00] > 0 && mesh.mask[v10] > 0 && mesh.mask[v01] > 0 && mesh.mask[v11] > 0)) continue;
+      if (!(mesh.mask[v00] >= 0.5 && mesh.mask[v10] >= 0.5 && mesh.mask[v01] >= 0.5 && mesh.mask[v11] >= 0.5)) continue;
       let maxPx = 0;
       let maxProj = 0;
       let maxTriPx = 0;
@@ -224,7 +232,7 @@ export function measureAccuracy(tracer: Tracer, mesh: WarpMesh, masterSize: numb
       for (let dc = -2; dc <= 3 && !nearEdge; dc++) {
         const rr = r0 + dr;
         const cc = c0 + dc;
-        if (rr >= 0 && cc >= 0 && rr < rows && cc < cols && mesh.mask[rr * cols + cc] === 0) nearEdge = true;
+        if (rr >= 0 && cc >= 0 && rr < rows && cc < cols && mesh.mask[rr * cols + cc] < 0.5) nearEdge = true;
       }
   }
   return {
@@ -265,6 +273,7 @@ export function bakeMesh(rig: Rig, options: Partial<BakeOptions> = {}, meta: Rec
   const tracer = new Tracer(rig);
   const { width: W, height: H } = tracer.frame;
   const areaMax = referenceArea(tracer);
+  const litOf = litTest(tracer);
   const rowsFor = (cols: number) => Math.max(2, Math.round(((cols - 1) * H) / W) + 1);
   const limit = Math.min(o.maxCols, W + 1);
   let cols = o.grid ? o.grid[0] : Math.min(65, limit);
@@ -272,7 +281,7 @@ export function bakeMesh(rig: Rig, options: Partial<BakeOptions> = {}, meta: Rec
   let mesh: WarpMesh;
   let accuracy: MeshAccuracy;
   for (let iter = 0; ; iter++) {
-    mesh = buildMesh(tracer, cols, rows, o, areaMax, meta);
+    mesh = buildMesh(tracer, cols, rows, o, areaMax, meta, litOf);
     accuracy = measureAccuracy(tracer, mesh, o.masterSize, o.samplesPerCell, o.tolerance);
     // both the bilinear cell and the two triangles a GPU draws must meet the tolerance
     const p99 = Math.max(accuracy.errorP99Projector, accuracy.triangles.errorP99Projector);
@@ -287,7 +296,7 @@ export function bakeMesh(rig: Rig, options: Partial<BakeOptions> = {}, meta: Rec
   let bMin = Infinity;
   let bMax = -Infinity;
   for (let k = 0; k < n; k++) {
-    if (mesh.mask[k] > 0) {
+    if (mesh.mask[k] >= 0.5) {
       // brightness of unlit vertices is filled from lit neighbours; only lit ones count here
       lit++;
       if (mesh.brightness[k] < bMin) bMin = mesh.brightness[k];
@@ -308,7 +317,8 @@ export function bakeMesh(rig: Rig, options: Partial<BakeOptions> = {}, meta: Rec
         (accuracy.worstNearEdge ? ", next to the edge of the lit area, where the light grazes the mirror's silhouette and the map's slope grows without bound" : ''),
     );
   }
-  return { mesh, accuracy, litFraction: lit / n, brightnessMin: lit ? bMin : 0, brightnessMax: lit ? bMax : 0, areaMax, notes, options: o };
+  const edge = measureEdgePlacement(litOf, mesh);
+  return { mesh, accuracy, edge, litFraction: lit / n, brightnessMin: lit ? bMin : 0, brightnessMax: lit ? bMax : 0, areaMax, notes, options: o };
 }
 
 function fmt(x: number): string {
