@@ -1,6 +1,6 @@
 /** `skyfold bake`: the warp mesh, with its measured accuracy, in open formats. */
 import { Option, type Command } from 'commander';
-import { BAKE_DEFAULTS, bakeMesh, rigToDocument, type BakeOptions, type BakeResult } from '@skyfold/warp-core';
+import { BAKE_DEFAULTS, bakeMesh, pixelFields, rigToDocument, type BakeOptions, type BakeResult } from '@skyfold/warp-core';
 import { readRig } from '../io/document-file.js';
 import { writeOutputFile } from '../io/output-file.js';
 import { UserError } from '../errors.js';
@@ -17,8 +17,13 @@ export interface BakeCliOptions extends Pick<BakeOptions, 'tolerance' | 'masterS
   output: string[];
   format?: MeshFormat;
   grid?: [number, number];
+  alphaResolution: AlphaResolution;
   json?: boolean;
 }
+
+/** What the MPCDI alpha map and the PNG map are sampled on: the vertex grid, or every projector pixel exactly. */
+export type AlphaResolution = 'grid' | 'full';
+export const ALPHA_RESOLUTIONS: readonly AlphaResolution[] = ['grid', 'full'];
 
 /** The bake summary as printed by --json (stable keys). */
 export function bakeSummary(r: BakeResult, files: string[]): Record<string, unknown> {
@@ -57,8 +62,13 @@ export function registerBake(program: Command): void {
     .option('--brightness <s>', 'brightness compensation strength, 0 (off) to 1 (full)', parseNumberIn(0, 1), BAKE_DEFAULTS.brightness)
     .option('--brightness-floor <f>', 'lowest brightness factor, so no region goes black', parseNumberIn(0, 1), BAKE_DEFAULTS.brightnessFloor)
     .option('--feather <deg>', "width on the dome in degrees of the mask's ramp across the edge of the lit area (0 = the narrowest the grid allows)", parseNumberIn(0, 90), BAKE_DEFAULTS.feather)
+    .addOption(
+      new Option('--alpha-resolution <which>', "the .mpcdi alpha map and the .png map: 'grid' (from the mesh's vertices) or 'full' (traced exactly at every projector pixel)")
+        .choices(ALPHA_RESOLUTIONS)
+        .default('grid'),
+    )
     .option('--json', 'machine-readable summary')
-    .addHelpText('after', '\nExamples:\n  skyfold bake rig.yaml -o mesh.glb\n  skyfold bake rig.yaml -o mesh.glb -o mesh.mpcdi -o mesh.csv --feather 2\n  skyfold bake rig.yaml -o mesh.glb --grid 321x201 --json')
+    .addHelpText('after', '\nExamples:\n  skyfold bake rig.yaml -o mesh.glb\n  skyfold bake rig.yaml -o mesh.mpcdi --alpha-resolution full\n  skyfold bake rig.yaml -o mesh.glb -o mesh.mpcdi -o mesh.csv --feather 2\n  skyfold bake rig.yaml -o mesh.glb --grid 321x201 --json')
     .action(async (rigPath: string, opts: BakeCliOptions) => {
       const rig = readRig(rigPath);
       const targets = opts.output.map((path) => {
@@ -79,11 +89,13 @@ export function registerBake(program: Command): void {
       };
       const meta = { generator: `skyfold ${VERSION}`, rig: rigToDocument(rig), bake: settings as Record<string, unknown> };
       const result = bakeMesh(rig, settings, meta);
-      meta.bake = { ...settings, grid: [result.mesh.cols, result.mesh.rows], accuracy: result.accuracy, areaMax: result.areaMax };
+      meta.bake = { ...settings, grid: [result.mesh.cols, result.mesh.rows], accuracy: result.accuracy, edge: result.edge, areaMax: result.areaMax };
+      const perPixel = opts.alphaResolution === 'full' && targets.some((t) => t.format === 'mpcdi' || t.format === 'png');
+      const pixels = perPixel ? pixelFields(rig, settings) : undefined;
       for (const t of targets) {
-        writeOutputFile(t.path, await encodeMesh(result.mesh, t.format));
+        writeOutputFile(t.path, await encodeMesh(result.mesh, t.format, { pixels }));
       }
-      const summary = bakeSummary(result, targets.map((t) => t.path));
+      const summary = { ...bakeSummary(result, targets.map((t) => t.path)), alphaResolution: opts.alphaResolution };
       if (opts.json) {
         printJson(summary);
         return;
@@ -100,7 +112,7 @@ export function registerBake(program: Command): void {
         `edge            mean ${f(result.edge.mean)}, p99 ${f(result.edge.p99)}, max ${f(result.edge.max)} projector px from the exact edge (the mask's 0.5 level on the two triangles per cell, ${result.edge.samples} samples)`,
         `brightness      ${result.brightnessMin.toFixed(3)} .. ${result.brightnessMax.toFixed(3)} (strength ${opts.brightness}, floor ${opts.brightnessFloor})`,
         ...result.notes.map((n) => `note            ${n}`),
-        ...targets.map((t) => `wrote           ${t.path} (${t.format})`),
+        ...targets.map((t) => `wrote           ${t.path} (${t.format}${pixels && (t.format === 'mpcdi' || t.format === 'png') ? ', traced at every projector pixel' : ''})`),
       ];
       writeOut(lines.join('\n') + '\n');
     });

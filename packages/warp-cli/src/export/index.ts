@@ -1,11 +1,11 @@
 /** Warp mesh files: one module per format, and a format-by-name front door for the CLI. */
-import type { WarpMesh } from '@skyfold/warp-core';
+import type { PixelFields, WarpMesh } from '@skyfold/warp-core';
 import { readCsv, writeCsv } from './csv.js';
 import { readGlb, writeGlb } from './glb.js';
 import { readMpcdi, writeMpcdi, type MpcdiOptions } from './mpcdi.js';
 import { readObj, writeObj } from './obj.js';
 import { readMeshPfm, writeMeshPfm } from './pfm.js';
-import { readMapPng, writeMapPng } from './png16.js';
+import { readMapPng, writeMapPng, writePixelMapPng } from './png16.js';
 
 
 export type MeshFormat = 'glb' | 'obj' | 'pfm' | 'mpcdi' | 'png' | 'csv';
@@ -20,6 +20,8 @@ export function formatFromPath(path: string): MeshFormat | undefined {
 
 export interface EncodeMeshOptions {
   mpcdi?: MpcdiOptions;
+  /** The exact fields at every projector pixel centre: the MPCDI alpha map and the PNG map are then written per pixel. */
+  pixels?: PixelFields;
 }
 
 /** The mesh as the bytes of a file in the given format (text formats UTF-8). */
@@ -32,9 +34,9 @@ export async function encodeMesh(mesh: WarpMesh, format: MeshFormat, options: En
     case 'pfm':
       return writeMeshPfm(mesh);
     case 'mpcdi':
-      return writeMpcdi(mesh, options.mpcdi);
+      return writeMpcdi(mesh, { ...options.mpcdi, pixels: options.pixels });
     case 'png':
-      return writeMapPng(mesh);
+      return options.pixels ? writePixelMapPng(options.pixels) : writeMapPng(mesh);
     case 'csv':
       return new TextEncoder().encode(writeCsv(mesh));
     default:

@@ -34,7 +34,7 @@
  */
 import { strToU8, strFromU8, unzipSync, zipSync } from 'fflate';
 import sharp from 'sharp';
-import type { WarpMesh } from '@skyfold/warp-core';
+import type { PixelFields, WarpMesh } from '@skyfold/warp-core';
 import { decodePfm, encodePfm } from './pfm.js';
 import { encodePng } from '../io/image-codec.js';
 
@@ -47,9 +47,11 @@ export interface MpcdiOptions {
   alphaBitDepth?: 8 | 16;
   /** Timestamp for the `date` attribute and the ZIP entries (default now). */
   date?: Date;
+  /** The exact fields at every projector pixel centre: the alpha map is then brightness·mask per pixel, not interpolated from the grid. */
+  pixels?: PixelFields;
 }
 
-export const MPCDI_DEFAULTS: Required<Omit<MpcdiOptions, 'date'>> = { bufferId: 'skyfold', regionId: 'projector', alphaBitDepth: 8 };
+export const MPCDI_DEFAULTS: Required<Omit<MpcdiOptions, 'date' | 'pixels'>> = { bufferId: 'skyfold', regionId: 'projector', alphaBitDepth: 8 };
 
 export async function writeMpcdi(mesh: WarpMesh, options: MpcdiOptions = {}): Promise<Uint8Array> {
   const opts = { ...MPCDI_DEFAULTS, ...options };
@@ -68,7 +70,7 @@ export async function writeMpcdi(mesh: WarpMesh, options: MpcdiOptions = {}): Pr
   }
   // MPCDI 2.0 (VESA): first row of the warp file = top of the region, unlike netpbm.
   const warpPfm = encodePfm({ width: mesh.cols, height: mesh.rows, channels: 3, data: warp }, { rowOrder: 'top-down' });
-  const alphaPng = await encodeAlphaMap(mesh, xRes, yRes, opts.alphaBitDepth);
+  const alphaPng = options.pixels ? await encodeExactAlphaMap(options.pixels, xRes, yRes, opts.alphaBitDepth) : await encodeAlphaMap(mesh, xRes, yRes, opts.alphaBitDepth);
 
   const stamp = date.toISOString().slice(0, 19).replace('T', ' ');
   const xml = [
@@ -135,6 +137,15 @@ async function encodeAlphaMap(mesh: WarpMesh, width: number, height: number, bit
       out[y * width + x] = Math.round(Math.min(1, Math.max(0, a)) * max);
     }
   }
+  return encodePng({ width, height, channels: 1, data: out }, 9);
+}
+
+/** The alpha map from the exact per-pixel fields: brightness·mask at each pixel centre. */
+async function encodeExactAlphaMap(f: PixelFields, width: number, height: number, bitDepth: 8 | 16): Promise<Uint8Array> {
+  if (f.width !== width || f.height !== height) throw new Error(`Expected per-pixel fields of ${width}×${height} but received ${f.width}×${f.height}`);
+  const max = bitDepth === 16 ? 65535 : 255;
+  const out = bitDepth === 16 ? new Uint16Array(width * height) : new Uint8Array(width * height);
+  for (let k = 0; k < width * height; k++) out[k] = Math.round(Math.min(1, Math.max(0, f.brightness[k] * f.mask[k])) * max);
   return encodePng({ width, height, channels: 1, data: out }, 9);
 }
 

@@ -7,10 +7,20 @@
  * u and v are clamped to [0, 1] (a point can sit slightly outside the fisheye square; the map cannot
  * say so). Brightness and mask are linear-light factors, stored without any transfer function.
  * Unlit points keep their u, v and brightness with A = 0; the colour channels are not premultiplied.
+ *
+ * Written at full resolution (`--alpha-resolution full`), the map has one pixel per projector pixel
+ * instead, each the exact trace at that pixel's centre (x + 0.5, y + 0.5), and says so in a PNG tEXt
+ * chunk (PNG specification, ISO/IEC 15948, Sec. 11.3.4.3): keyword `skyfold-layout`, text
+ * `pixel-centres`. Such a map is not a vertex grid and is not read back as a mesh.
  */
+import { crc32 } from 'node:zlib';
 import sharp from 'sharp';
-import { createMesh, type WarpMesh } from '@skyfold/warp-core';
+import { createMesh, type PixelFields, type WarpMesh } from '@skyfold/warp-core';
 import { encodePng } from '../io/image-codec.js';
+
+/** tEXt keyword and text that mark a full-resolution (per pixel centre) map. */
+export const PNG_LAYOUT_KEYWORD = 'skyfold-layout';
+export const PNG_LAYOUT_PIXELS = 'pixel-centres';
 
 const MAX16 = 65535;
 
@@ -29,6 +39,55 @@ export async function decodePng16(bytes: Uint8Array): Promise<{ width: number; h
   const { data, info } = await image.toColorspace(space).raw({ depth: 'ushort' }).toBuffer({ resolveWithObject: true });
   const samples = new Uint16Array(data.buffer.slice(data.byteOffset, data.byteOffset + data.byteLength));
   return { width: info.width, height: info.height, channels: info.channels, data: samples };
+}
+
+/** The full-resolution map: one pixel per projector pixel, the exact fields at its centre, marked by a tEXt chunk. */
+export async function writePixelMapPng(f: PixelFields): Promise<Uint8Array> {
+  const n = f.width * f.height;
+  const data = new Uint16Array(n * 4);
+  for (let i = 0; i < n; i++) {
+    data[i * 4] = to16(f.u[i]);
+    data[i * 4 + 1] = to16(f.v[i]);
+    data[i * 4 + 2] = to16(f.brightness[i]);
+    data[i * 4 + 3] = to16(f.mask[i]);
+  }
+  return withTextChunk(await encodePng({ width: f.width, height: f.height, channels: 4, data }, 9), PNG_LAYOUT_KEYWORD, PNG_LAYOUT_PIXELS);
+}
+
+/**
+ * Inserts a tEXt chunk right after IHDR (PNG specification, ISO/IEC 15948, Sec. 5.3 chunk layout:
+ * length, type, data, CRC-32 over type and data; Sec. 11.3.4.3 tEXt: keyword, a zero byte, Latin-1 text).
+ */
+export function withTextChunk(png: Uint8Array, keyword: string, text: string): Uint8Array {
+  const ihdrEnd = 8 + 4 + 4 + 13 + 4; // signature, then IHDR: length, type, 13 data bytes, CRC
+  const body = new TextEncoder().encode(`tEXt${keyword}\0${text}`);
+  const chunk = new Uint8Array(4 + body.length + 4);
+  const dv = new DataView(chunk.buffer);
+  dv.setUint32(0, body.length - 4);
+  chunk.set(body, 4);
+  dv.setUint32(4 + body.length, crc32(body));
+  const out = new Uint8Array(png.length + chunk.length);
+  out.set(png.subarray(0, ihdrEnd));
+  out.set(chunk, ihdrEnd);
+  out.set(png.subarray(ihdrEnd), ihdrEnd + chunk.length);
+  return out;
+}
+
+/** The text of the first tEXt chunk with this keyword, or undefined. */
+export function readTextChunk(png: Uint8Array, keyword: string): string | undefined {
+  const dv = new DataView(png.buffer, png.byteOffset, png.byteLength);
+  for (let at = 8; at + 12 <= png.length; ) {
+    const len = dv.getUint32(at);
+    const type = String.fromCharCode(...png.subarray(at + 4, at + 8));
+    if (type === 'IDAT' || type === 'IEND') return undefined; // tEXt chunks skyfold writes come before the image data
+    if (type === 'tEXt' && at + 8 + len <= png.length) {
+      const data = png.subarray(at + 8, at + 8 + len);
+      const zero = data.indexOf(0);
+      if (zero >= 0 && new TextDecoder('latin1').decode(data.subarray(0, zero)) === keyword) return new TextDecoder('latin1').decode(data.subarray(zero + 1));
+    }
+    at += 12 + len;
+  }
+  return undefined;
 }
 
 export async function writeMapPng(mesh: WarpMesh): Promise<Uint8Array> {
@@ -52,6 +111,9 @@ export interface ReadMapPngOptions {
 
 /** Reads a map written by {@link writeMapPng}; values come back quantised to 1/65535. */
 export async function readMapPng(bytes: Uint8Array, options: ReadMapPngOptions = {}): Promise<WarpMesh> {
+  if (readTextChunk(bytes, PNG_LAYOUT_KEYWORD) === PNG_LAYOUT_PIXELS) {
+    throw new Error('Expected a vertex-grid PNG map but received a full-resolution one (one pixel per projector pixel, written with --alpha-resolution full)');
+  }
   const img = await decodePng16(bytes);
   if (img.channels !== 4) throw new Error(`Expected a 4-channel (RGBA) PNG map but received ${img.channels} channels`);
   if (img.width < 2 || img.height < 2) throw new Error(`Expected a PNG map of at least 2×2 but received ${img.width}×${img.height}`);
