@@ -9,6 +9,7 @@ export { linearToSrgb, srgbToLinear } from './srgb.js';
 
 export { MAX_PROJECTOR_SIDE, RigError, validateRigGeometry, type ContentModel, type DomeModel, type MirrorModel, type ProjectorBody, type ProjectorModel, type Rig } from './rig/model.js';
 export { rigFromDocument, rigToDocument, shortQuote, type RigDocumentOptions } from './rig/document.js';
+export { cloneRig } from './rig/clone.js';
 export { rigWarnings } from './rig/warnings.js';
 
 export { pixelToRay, rayToPixel, projectorFrame, type ProjectorFrame } from './optics/projector.js';

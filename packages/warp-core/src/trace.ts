@@ -5,7 +5,7 @@
 import { rayDomeExit } from './optics/dome.js';
 import { directionToFisheye } from './optics/fisheye.js';
 import { azAltFromDirection, type Vec3 } from './math.js';
-import { mirrorNormal, onCap, raySphereFirstHit, reflect } from './optics/mirror.js';
+import { capCosine, mirrorNormal, onCap, raySphereFirstHit, reflect } from './optics/mirror.js';
 import { pixelToRay, projectorFrame, type ProjectorFrame } from './optics/projector.js';
 import type { Rig } from './rig/model.js';
 
@@ -116,7 +116,7 @@ export class Tracer {
     const mr = mirror.radius;
     const invR = 1 / mr;
     const [ax, ay, az] = mirror.axis;
-    const capCos = Math.cos(mirror.capAngle) - 1e-12;
+    const capCos = capCosine(mirror); // onCap's rule, on the unit normal the loop already has
     const ox = px - mcx;
     const oy = py - mcy;
     const oz = pz - mcz;

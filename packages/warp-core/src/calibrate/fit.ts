@@ -17,9 +17,10 @@ import { rayDomeExit } from '../optics/dome.js';
 import { cross, directionFromAzAlt, azAltFromDirection, dot, length, normalize, sub, type ReadonlyVec3, type Vec3 } from '../math.js';
 import { onCap, raySphereFirstHit } from '../optics/mirror.js';
 import { pixelToRay, projectorFrame, type ProjectorFrame } from '../optics/projector.js';
+import { cloneRig } from '../rig/clone.js';
 import { mirrorPole, RigError, validateRigGeometry, type Rig } from '../rig/model.js';
 import { levenbergMarquardt, numericJacobian } from './levenberg-marquardt.js';
-import { symmetricEigen } from './matrix.js';
+import { normalEquations, symmetricEigen } from './matrix.js';
 import { FREE_QUANTITIES, pointLabel, type DistanceMeasurement, type FreeQuantity, type MeasurementSet, type Observation, type PointRef } from './measurements.js';
 import { locatePoint } from './trilaterate.js';
 
@@ -227,25 +228,6 @@ function makeBlocks(base: Rig, free: readonly FreeQuantity[]): Block[] {
 
 function blockSize(b: Block): number {
   return b.components.length;
-}
-
-function cloneRig(r: Rig): Rig {
-  const v = (a: readonly number[]) => [a[0], a[1], a[2]] as Vec3;
-  return {
-    ...r,
-    dome: { ...r.dome },
-    mirror: { ...r.mirror, center: v(r.mirror.center), axis: v(r.mirror.axis) },
-    projector: {
-      ...r.projector,
-      position: v(r.projector.position),
-      lookAt: v(r.projector.lookAt),
-      up: r.projector.up ? v(r.projector.up) : undefined,
-      resolution: [r.projector.resolution[0], r.projector.resolution[1]],
-      lensShift: [r.projector.lensShift[0], r.projector.lensShift[1]],
-      body: r.projector.body ? { ...r.projector.body } : undefined,
-    },
-    content: { ...r.content, eye: v(r.content.eye) },
-  };
 }
 
 /** The rig for parameter vector p, or null when that rig cannot work. */
@@ -581,8 +563,7 @@ interface RankAnalysis {
  * WEAK_TOLERANCE·λmax ones it barely sees; each is named by the components with a large share of it.
  */
 function rankAnalysis(J: Float64Array, m: number, n: number, blocks: readonly Block[], where: 'start' | 'solution'): RankAnalysis {
-  const JtJ = new Float64Array(n * n);
-  for (let k = 0; k < m; k++) for (let i = 0; i < n; i++) for (let j = 0; j < n; j++) JtJ[i * n + j] += J[k * n + i] * J[k * n + j];
+  const { JtJ } = normalEquations(J, null, m, n);
   const scale = new Float64Array(n);
   const dead: number[] = [];
   for (let i = 0; i < n; i++) {

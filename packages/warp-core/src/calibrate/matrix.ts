@@ -104,13 +104,13 @@ export function symmetricEigen(A: Float64Array, n: number): SymmetricEigen {
   return { values, vectors };
 }
 
-/** Jᵀ·J (n×n) and Jᵀ·r (n) for a row-major m×n matrix J. */
-export function normalEquations(J: Float64Array, r: Float64Array, m: number, n: number): { JtJ: Float64Array; Jtr: Float64Array } {
+/** Jᵀ·J (n×n) and Jᵀ·r (n) for a row-major m×n matrix J; without r, Jᵀ·r is zero. */
+export function normalEquations(J: Float64Array, r: Float64Array | null, m: number, n: number): { JtJ: Float64Array; Jtr: Float64Array } {
   const JtJ = new Float64Array(n * n);
   const Jtr = new Float64Array(n);
   for (let k = 0; k < m; k++) {
     const row = k * n;
-    const rk = r[k];
+    const rk = r ? r[k] : 0;
     for (let i = 0; i < n; i++) {
       const ji = J[row + i];
       if (ji === 0) continue;

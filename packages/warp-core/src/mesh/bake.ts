@@ -170,12 +170,8 @@ export function measureAccuracy(tracer: Tracer, mesh: WarpMesh, masterSize: numb
           const fx = (a + 0.5) / k;
           const idx = (r * k + b) * nx + (c * k + a);
           if (!landsOnDome(g.kind[idx])) continue;
-          const w00 = (1 - fx) * (1 - fy);
-          const w10 = fx * (1 - fy);
-          const w01 = (1 - fx) * fy;
-          const w11 = fx * fy;
-          const mu = w00 * mesh.u[v00] + w10 * mesh.u[v10] + w01 * mesh.u[v01] + w11 * mesh.u[v11];
-          const mv = w00 * mesh.v[v00] + w10 * mesh.v[v10] + w01 * mesh.v[v01] + w11 * mesh.v[v11];
+          const mu = interpolateCell(mesh.u, v00, cols, fx, fy, false);
+          const mv = interpolateCell(mesh.v, v00, cols, fx, fy, false);
           const du = (mu - g.u[idx]) * N;
           const dv = (mv - g.v[idx]) * N;
           const ePx = Math.hypot(du, dv);

@@ -2,6 +2,8 @@
  * Sampled fields over the projector frame on separable grids: the trace, the dome area each pixel
  * lights (for brightness), and the mask with an optional soft edge.
  */
+import type { Vec3 } from '../math.js';
+import { fisheyeToDirection } from '../optics/fisheye.js';
 import { allocGridOutput, type GridOutput, type Tracer, landsOnDome } from '../trace.js';
 
 /** Dome area lit per unit of projector pixel area, at each point of the separable grid (xs, ys). */
@@ -121,16 +123,13 @@ export function featherMask(g: GridOutput, fov: number, featherRad: number, lit:
   }
   // directions from the fisheye coordinates (equidistant: angle from zenith = ρ·fov)
   const dir = new Float64Array(3 * n);
+  const d: Vec3 = [0, 0, 0];
   for (let k = 0; k < n; k++) {
     if (!lit[k]) continue;
-    const x = u[k] - 0.5;
-    const y = v[k] - 0.5;
-    const rho = Math.hypot(x, y);
-    const th = rho * fov;
-    const s = rho > 0 ? Math.sin(th) / rho : 0;
-    dir[3 * k] = x * s;
-    dir[3 * k + 1] = y * s;
-    dir[3 * k + 2] = Math.cos(th);
+    fisheyeToDirection(d, u[k], v[k], fov);
+    dir[3 * k] = d[0];
+    dir[3 * k + 1] = d[1];
+    dir[3 * k + 2] = d[2];
   }
   const dist = new Float64Array(n).fill(Infinity);
   for (let j = 0; j < rows; j++) {

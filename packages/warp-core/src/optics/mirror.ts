@@ -22,10 +22,18 @@ export function raySphereFirstHit(o: ReadonlyVec3, d: ReadonlyVec3, center: Read
   return t1 >= 0 ? t1 : -1; // inside: the exit; else the sphere is behind
 }
 
-/** True when the sphere point x lies on the reflective cap: (x − center)·axis ≥ r·cos(capAngle). */
+/**
+ * The cap's edge as a cosine: the unit outward normal n of a sphere point is on the reflective cap when
+ * n·axis ≥ capCosine(m). The 1e-12 of slack keeps a point exactly on the edge on the cap despite rounding.
+ */
+export function capCosine(m: MirrorModel): number {
+  return Math.cos(m.capAngle) - 1e-12;
+}
+
+/** True when the sphere point x lies on the reflective cap: (x − center)·axis ≥ r·capCosine. */
 export function onCap(m: MirrorModel, x: ReadonlyVec3): boolean {
   const s = (x[0] - m.center[0]) * m.axis[0] + (x[1] - m.center[1]) * m.axis[1] + (x[2] - m.center[2]) * m.axis[2];
-  return s >= m.radius * Math.cos(m.capAngle) - 1e-12 * m.radius;
+  return s >= m.radius * capCosine(m);
 }
 
 /**

@@ -8,6 +8,7 @@
  */
 import { DEG, length, normalize, RAD, sub, type Vec3 } from '../math.js';
 import { seededRandom } from '../random.js';
+import { cloneRig } from '../rig/clone.js';
 import { RigError, validateRigGeometry, type Rig } from '../rig/model.js';
 import { projectorFrame } from '../optics/projector.js';
 import { Tracer } from '../trace.js';
@@ -99,16 +100,6 @@ export interface PlanResult {
   /** The bounds searched, by field name. */
   bounds: Record<string, [number, number]>;
   notes: string[];
-}
-
-function cloneRig(rig: Rig): Rig {
-  return {
-    ...rig,
-    dome: { ...rig.dome },
-    mirror: { ...rig.mirror, center: [...rig.mirror.center] as Vec3, axis: [...rig.mirror.axis] as Vec3 },
-    projector: { ...rig.projector, position: [...rig.projector.position] as Vec3, lookAt: [...rig.projector.lookAt] as Vec3 },
-    content: { ...rig.content, eye: [...rig.content.eye] as Vec3 },
-  };
 }
 
 const AXES = ['x', 'y', 'z'] as const;
