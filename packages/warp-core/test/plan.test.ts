@@ -2,7 +2,8 @@
 import { describe, expect, it } from 'vitest';
 import { deg, validateRigGeometry, type Rig } from '../src/rig/model.js';
 import { length } from '../src/math.js';
-import { placementViolations, planRig } from '../src/placement/plan.js';
+import { planRig } from '../src/placement/plan.js';
+import { placementViolations } from '../src/placement/scoring.js';
 
 function rig(over: (r: Rig) => void = () => {}): Rig {
   const s = Math.SQRT1_2;

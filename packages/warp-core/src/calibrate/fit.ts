@@ -613,6 +613,220 @@ function rankAnalysis(J: Float64Array, m: number, n: number, blocks: readonly Bl
   return { scale, eig, lmax, nullDirections, degeneracies };
 }
 
+/** The least-squares problem of one fit: the parameter blocks, the model and their sizes. */
+interface FitProblem {
+  base: Rig;
+  set: MeasurementSet;
+  blocks: readonly Block[];
+  /** Distances, observations. */
+  distances: number;
+  observations: number;
+  equations: number;
+  unknowns: number;
+  steps: number[];
+  /** Unweighted normalized residuals at q; null where q gives no working rig. */
+  residuals: (q: Float64Array) => Float64Array | null;
+  /** Σ r² of the unweighted residuals (Infinity where q gives no working rig). */
+  sumOfSquares: (q: Float64Array) => number;
+}
+
+function fitProblem(base: Rig, set: MeasurementSet, blocks: readonly Block[]): FitProblem {
+  const model = makeModel(set);
+  const residuals = (q: Float64Array): Float64Array | null => {
+    const r = rigAt(base, blocks, q);
+    return r ? model.residuals(r) : null;
+  };
+  return {
+    base,
+    set,
+    blocks,
+    distances: set.measurements.length,
+    observations: set.observations.length,
+    equations: model.equations,
+    unknowns: blocks.reduce((s, b) => s + blockSize(b), 0),
+    steps: blocks.flatMap((b) => b.components.map(() => b.step)),
+    residuals,
+    sumOfSquares: (q) => {
+      const r = residuals(q);
+      return r ? r.reduce((s, x) => s + x * x, 0) : Infinity;
+    },
+  };
+}
+
+interface Solution {
+  fit: ReturnType<typeof levenbergMarquardt>;
+  /** Robust weight per item (distances, then observations); all 1 without reweighting. */
+  weights: number[];
+  iterations: number;
+  converged: boolean;
+}
+
+/** Plain weighted least squares from p. */
+function solve(problem: FitProblem, p: Float64Array, maxIterations: number): Solution {
+  const fit = levenbergMarquardt({ n: problem.unknowns, steps: problem.steps, residuals: problem.residuals }, p, { maxIterations });
+  return { fit, weights: new Array<number>(problem.distances + problem.observations).fill(1), iterations: fit.iterations, converged: fit.converged };
+}
+
+/** Huber reweighting rounds after the plain solve, until the weights settle (at most 30 rounds). */
+function robustReweighting(problem: FitProblem, plain: Solution, huberK: number, maxIterations: number, notes: string[]): Solution {
+  const { distances: nd, observations: no } = problem;
+  let { fit, weights, iterations, converged } = plain;
+  let rounds = 0;
+  for (; rounds < 30; rounds++) {
+    const raw = problem.residuals(fit.p)!;
+    const next = itemWeights(raw, nd, no, huberK);
+    const change = next.reduce((m, w, i) => Math.max(m, Math.abs(w - weights[i])), 0);
+    weights = next;
+    if (change < 1e-4 && rounds > 0) break;
+    const sw = expandWeights(weights, nd, no);
+    const weighted = (q: Float64Array): Float64Array | null => {
+      const r = problem.residuals(q);
+      if (!r) return null;
+      for (let i = 0; i < r.length; i++) r[i] *= sw[i];
+      return r;
+    };
+    fit = levenbergMarquardt({ n: problem.unknowns, steps: problem.steps, residuals: weighted }, fit.p, { maxIterations });
+    iterations += fit.iterations;
+    converged = fit.converged;
+  }
+  notes.push(`robust (Huber, k = ${huberK}): ${rounds + 1} reweighting rounds`);
+  return { fit, weights, iterations, converged };
+}
+
+/**
+ * The solution's rank analysis joined with the start's: a direction the data cannot see is exact
+ * before the solver wanders along it, so what was invisible at the start stays undetermined, carried
+ * into the solution's scaling.
+ */
+function joinRankAnalyses(solution: RankAnalysis, start: RankAnalysis, n: number): RankAnalysis {
+  const degeneracies = [...solution.degeneracies];
+  for (const d of start.degeneracies) {
+    if (!degeneracies.some((e) => e.quantities.join() === d.quantities.join() && e.severity === d.severity)) degeneracies.push(d);
+  }
+  const nullDirections = [...solution.nullDirections];
+  const scale = solution.scale;
+  for (const v of start.nullDirections) {
+    const u = new Float64Array(n);
+    for (let i = 0; i < n; i++) u[i] = scale[i] > 0 ? (v[i] * (start.scale[i] || 1)) / scale[i] : v[i];
+    const l = Math.hypot(...u);
+    if (l > 0) nullDirections.push(u.map((x) => x / l));
+  }
+  return { ...solution, degeneracies, nullDirections };
+}
+
+/**
+ * Cov = s²·S·C⁺·S, with C⁺ the pseudo-inverse of the scaled normal matrix over its determined
+ * directions and s² = cost/(m − n) the variance factor (1 without redundancy).
+ */
+function covariance(rank: RankAnalysis, cost: number, m: number, n: number): { cov: Float64Array; varianceFactor: number } {
+  const { scale, eig, lmax } = rank;
+  const dof = m - n;
+  const varianceFactor = dof > 0 ? cost / dof : 1;
+  const Cplus = new Float64Array(n * n);
+  for (let k = 0; k < n; k++) {
+    if (eig.values[k] / lmax < RANK_TOLERANCE) continue;
+    const inv = 1 / eig.values[k];
+    for (let i = 0; i < n; i++) for (let j = 0; j < n; j++) Cplus[i * n + j] += eig.vectors[i * n + k] * eig.vectors[j * n + k] * inv;
+  }
+  const cov = new Float64Array(n * n);
+  for (let i = 0; i < n; i++) for (let j = 0; j < n; j++) cov[i * n + j] = varianceFactor * scale[i] * scale[j] * Cplus[i * n + j];
+  return { cov, varianceFactor };
+}
+
+/** d(block value)/dp at p by central differences (one-sided where one side gives no working rig). */
+function valueGradient(problem: FitProblem, block: Block, p: Float64Array, value: readonly number[]): number[][] {
+  const { base, blocks, steps, unknowns: n } = problem;
+  const G: number[][] = value.map(() => new Array<number>(n).fill(0));
+  for (let j = 0; j < n; j++) {
+    const q = Float64Array.from(p);
+    q[j] = p[j] + steps[j];
+    const rp = rigAt(base, blocks, q);
+    q[j] = p[j] - steps[j];
+    const rm = rigAt(base, blocks, q);
+    if (rp && rm) {
+      const vp = block.value(rp);
+      const vm = block.value(rm);
+      for (let c = 0; c < value.length; c++) G[c][j] = (vp[c] - vm[c]) / (2 * steps[j]);
+    } else if (rp || rm) {
+      const v1 = block.value((rp ?? rm)!);
+      const sgn = rp ? 1 : -1;
+      for (let c = 0; c < value.length; c++) G[c][j] = (sgn * (v1[c] - value[c])) / steps[j];
+    }
+  }
+  return G;
+}
+
+/**
+ * The standard error of a quantity whose gradient in p is `row`: √(row·Cov·rowᵀ), or null when it moves
+ * along a direction the data cannot see.
+ */
+function standardError(row: ArrayLike<number>, cov: Float64Array, rank: RankAnalysis, n: number): number | null {
+  const { scale, nullDirections } = rank;
+  let norm = 0;
+  for (let j = 0; j < n; j++) norm += (row[j] * (scale[j] || 1)) ** 2;
+  norm = Math.sqrt(norm);
+  for (const v of nullDirections) {
+    let proj = 0;
+    for (let j = 0; j < n; j++) proj += row[j] * (scale[j] || 1) * v[j];
+    if (norm > 0 && Math.abs(proj) > 0.05 * norm) return null;
+  }
+  let s = 0;
+  for (let i = 0; i < n; i++) for (let j = 0; j < n; j++) s += row[i] * cov[i * n + j] * row[j];
+  return Math.sqrt(Math.max(0, s));
+}
+
+/** Each quantity's person-facing value and its standard errors, by propagating Cov through it. */
+function propagateErrors(problem: FitProblem, p: Float64Array, fitted: Rig, cov: Float64Array, rank: RankAnalysis): FitParameter[] {
+  const n = problem.unknowns;
+  const parameters: FitParameter[] = [];
+  let at = 0;
+  for (const b of problem.blocks) {
+    const value = b.value(fitted);
+    const stderr = valueGradient(problem, b, p, value).map((row) => standardError(row, cov, rank, n));
+    const param: FitParameter = { name: b.name, kind: b.kind, initial: b.value(problem.base), value, stderr };
+    if (b.name === 'projector.lookAt') {
+      param.aimStderr = [0, 1].map((c) => {
+        const row = new Float64Array(n);
+        row[at + c] = 1;
+        return standardError(row, cov, rank, n);
+      });
+    }
+    parameters.push(param);
+    at += blockSize(b);
+  }
+  return parameters;
+}
+
+function worstResidual(residuals: readonly FitResidual[]): FitResidual | null {
+  let worst: FitResidual | null = null;
+  for (const r of residuals) if (!worst || Math.abs(r.normalized) > Math.abs(worst.normalized)) worst = r;
+  return worst;
+}
+
+/** Warnings about the starting rig: observations whose pixel misses the mirror there. */
+function startWarnings(initialResiduals: readonly FitResidual[]): string[] {
+  const warnings: string[] = [];
+  for (const r of initialResiduals) {
+    if (r.kind === 'observation' && !r.onMirror) warnings.push(`${r.field}: pixel ${r.pixel.join(',')} misses the mirror in the starting rig; the fit steers it back by continuing the reflection past the mirror's edge`);
+  }
+  return warnings;
+}
+
+/** Warnings about the solution: items that miss, disagree or stand out; a fit with no redundancy. */
+function solutionWarnings(residuals: readonly FitResidual[], worst: FitResidual | null, robust: boolean, dof: number): string[] {
+  const warnings: string[] = [];
+  if (dof === 0) warnings.push('as many equations as unknowns: no redundancy to check the fit against; standard errors assume the stated sigmas');
+  for (const r of residuals) {
+    if (r.kind === 'observation' && !r.onMirror) warnings.push(`${r.field}: pixel ${r.pixel.join(',')} misses the mirror in the fitted rig: check that observation`);
+  }
+  if (robust) {
+    for (const r of residuals) if (r.weight < 0.5) warnings.push(`${r.field} (${r.label}) disagrees with the rest: ${Math.abs(r.normalized).toFixed(1)} sigma off, down-weighted to ${r.weight.toFixed(2)}`);
+  } else if (worst && Math.abs(worst.normalized) > 3 && dof > 0) {
+    warnings.push(`${worst.field} (${worst.label}) is ${Math.abs(worst.normalized).toFixed(1)} sigma off: check that reading, or try --robust`);
+  }
+  return warnings;
+}
+
 /**
  * Solves the free quantities of `rig` from a measurement set. Throws RigError (naming the measurement
  * field) for inputs that cannot be fitted: no free quantity, fewer equations than unknowns, a pixel
@@ -624,158 +838,34 @@ export function fitRig(rig: Rig, set: MeasurementSet, options: Partial<FitOption
   const blocks = makeBlocks(rig, free);
   checkInputs(rig, set, free, blocks);
   validateRigGeometry(rig);
-  const model = makeModel(set);
-  const nd = set.measurements.length;
-  const no = set.observations.length;
-  const m = model.equations;
-  const n = blocks.reduce((s, b) => s + blockSize(b), 0);
-  const steps = blocks.flatMap((b) => b.components.map(() => b.step));
-  const warnings: string[] = [];
+  const problem = fitProblem(rig, set, blocks);
+  const { equations: m, unknowns: n } = problem;
   const notes: string[] = [];
 
-  let p: Float64Array = Float64Array.from(blocks.flatMap((b) => b.read(rig)));
-  const plainResiduals = (q: Float64Array): Float64Array | null => {
-    const r = rigAt(rig, blocks, q);
-    return r ? model.residuals(r) : null;
-  };
-  const sumSq = (q: Float64Array): number => {
-    const r = plainResiduals(q);
-    return r ? r.reduce((s, x) => s + x * x, 0) : Infinity;
-  };
-
   const initialResiduals = describeResiduals(rig, set, []);
-  for (const r of initialResiduals) {
-    if (r.kind === 'observation' && !r.onMirror) warnings.push(`${r.field}: pixel ${r.pixel.join(',')} misses the mirror in the starting rig; the fit steers it back by continuing the reflection past the mirror's edge`);
-  }
+  let p: Float64Array = Float64Array.from(blocks.flatMap((b) => b.read(rig)));
+  if (o.trilaterate) p = trilaterationSeed(rig, set, blocks, p, problem.sumOfSquares, notes);
+  const startJacobian = numericJacobian({ n, steps: problem.steps, residuals: problem.residuals }, p, problem.residuals(p)!);
+  const startRank = rankAnalysis(startJacobian, m, n, blocks, 'start');
 
-  if (o.trilaterate) p = trilaterationSeed(rig, set, blocks, p, sumSq, notes);
-  const startResiduals = plainResiduals(p)!;
-  const startRank = rankAnalysis(numericJacobian({ n, steps, residuals: plainResiduals }, p, startResiduals), m, n, blocks, 'start');
+  const plain = solve(problem, p, o.maxIterations);
+  const solution = o.robust ? robustReweighting(problem, plain, o.huberK, o.maxIterations, notes) : plain;
+  const { fit } = solution;
+  const fitted = rigAt(rig, blocks, fit.p)!;
 
-  // Plain least squares, then (robust) Huber reweighting rounds until the weights settle.
-  let weights = new Array<number>(nd + no).fill(1);
-  let iterations = 0;
-  let converged = false;
-  let fit = levenbergMarquardt({ n, steps, residuals: plainResiduals }, p, { maxIterations: o.maxIterations });
-  iterations += fit.iterations;
-  converged = fit.converged;
-  if (o.robust) {
-    let rounds = 0;
-    for (; rounds < 30; rounds++) {
-      const raw = plainResiduals(fit.p)!;
-      const next = itemWeights(raw, nd, no, o.huberK);
-      const change = next.reduce((m, w, i) => Math.max(m, Math.abs(w - weights[i])), 0);
-      weights = next;
-      if (change < 1e-4 && rounds > 0) break;
-      const sw = expandWeights(weights, nd, no);
-      const weighted = (q: Float64Array): Float64Array | null => {
-        const r = plainResiduals(q);
-        if (!r) return null;
-        for (let i = 0; i < r.length; i++) r[i] *= sw[i];
-        return r;
-      };
-      fit = levenbergMarquardt({ n, steps, residuals: weighted }, fit.p, { maxIterations: o.maxIterations });
-      iterations += fit.iterations;
-      converged = fit.converged;
-    }
-    notes.push(`robust (Huber, k = ${o.huberK}): ${rounds + 1} reweighting rounds`);
-  }
-  p = fit.p;
-  const fitted = rigAt(rig, blocks, p)!;
-  if (!converged) warnings.push(`the solver stopped before converging (${fit.reason}); the result may not be the best fit`);
+  // covariance and rank from the weighted Jacobian at the solution
+  const rank = joinRankAnalyses(rankAnalysis(fit.jacobian, m, n, blocks, 'solution'), startRank, n);
+  const { cov, varianceFactor } = covariance(rank, fit.cost, m, n);
+  const parameters = propagateErrors(problem, fit.p, fitted, cov, rank);
 
-  // Covariance and rank from the weighted Jacobian at the solution; rank also at the start, where a
-  // direction the data cannot see is exact before the solver wanders along it.
-  const rank = rankAnalysis(fit.jacobian, m, n, blocks, 'solution');
-  const { scale, eig, lmax, nullDirections } = rank;
-  const degeneracies = rank.degeneracies;
-  for (const d of startRank.degeneracies) {
-    if (!degeneracies.some((e) => e.quantities.join() === d.quantities.join() && e.severity === d.severity)) degeneracies.push(d);
-  }
-  for (const d of degeneracies) warnings.push(d.message);
-  // what was invisible at the start stays undetermined: carry those directions into the solution's scaling
-  for (const v of startRank.nullDirections) {
-    const u = new Float64Array(n);
-    for (let i = 0; i < n; i++) u[i] = scale[i] > 0 ? (v[i] * (startRank.scale[i] || 1)) / scale[i] : v[i];
-    const l = Math.hypot(...u);
-    if (l > 0) nullDirections.push(u.map((x) => x / l));
-  }
-
-  // C⁺ over the determined directions; Cov = s²·S·C⁺·S.
-  const dof = m - n;
-  const robustCost = fit.cost;
-  const varianceFactor = dof > 0 ? robustCost / dof : 1;
-  if (dof === 0) warnings.push('as many equations as unknowns: no redundancy to check the fit against; standard errors assume the stated sigmas');
-  const Cplus = new Float64Array(n * n);
-  for (let k = 0; k < n; k++) {
-    if (eig.values[k] / lmax < RANK_TOLERANCE) continue;
-    const inv = 1 / eig.values[k];
-    for (let i = 0; i < n; i++) for (let j = 0; j < n; j++) Cplus[i * n + j] += eig.vectors[i * n + k] * eig.vectors[j * n + k] * inv;
-  }
-  const cov = new Float64Array(n * n);
-  for (let i = 0; i < n; i++) for (let j = 0; j < n; j++) cov[i * n + j] = varianceFactor * scale[i] * scale[j] * Cplus[i * n + j];
-
-  // Each quantity's person-facing value and its standard errors, by propagating cov through it.
-  const parameters: FitParameter[] = [];
-  let at = 0;
-  for (const b of blocks) {
-    const size = blockSize(b);
-    const value = b.value(fitted);
-    const G: number[][] = value.map(() => new Array<number>(n).fill(0));
-    for (let j = 0; j < n; j++) {
-      const q = Float64Array.from(p);
-      q[j] = p[j] + steps[j];
-      const rp = rigAt(rig, blocks, q);
-      q[j] = p[j] - steps[j];
-      const rm = rigAt(rig, blocks, q);
-      if (rp && rm) {
-        const vp = b.value(rp);
-        const vm = b.value(rm);
-        for (let c = 0; c < value.length; c++) G[c][j] = (vp[c] - vm[c]) / (2 * steps[j]);
-      } else if (rp || rm) {
-        const v1 = b.value((rp ?? rm)!);
-        const sgn = rp ? 1 : -1;
-        for (let c = 0; c < value.length; c++) G[c][j] = (sgn * (v1[c] - value[c])) / steps[j];
-      }
-    }
-    const stderrOf = (row: ArrayLike<number>): number | null => {
-      // undetermined when this component moves along a direction the data cannot see
-      let norm = 0;
-      for (let j = 0; j < n; j++) norm += (row[j] * (scale[j] || 1)) ** 2;
-      norm = Math.sqrt(norm);
-      for (const v of nullDirections) {
-        let proj = 0;
-        for (let j = 0; j < n; j++) proj += row[j] * (scale[j] || 1) * v[j];
-        if (norm > 0 && Math.abs(proj) > 0.05 * norm) return null;
-      }
-      let s = 0;
-      for (let i = 0; i < n; i++) for (let j = 0; j < n; j++) s += row[i] * cov[i * n + j] * row[j];
-      return Math.sqrt(Math.max(0, s));
-    };
-    const stderr = G.map(stderrOf);
-    const param: FitParameter = { name: b.name, kind: b.kind, initial: b.value(rig), value, stderr };
-    if (b.name === 'projector.lookAt') {
-      param.aimStderr = [0, 1].map((c) => {
-        const row = new Float64Array(n);
-        row[at + c] = 1;
-        return stderrOf(row);
-      });
-    }
-    parameters.push(param);
-    at += size;
-  }
-
-  const residuals = describeResiduals(fitted, set, weights);
-  let worst: FitResidual | null = null;
-  for (const r of residuals) if (!worst || Math.abs(r.normalized) > Math.abs(worst.normalized)) worst = r;
-  for (const r of residuals) {
-    if (r.kind === 'observation' && !r.onMirror) warnings.push(`${r.field}: pixel ${r.pixel.join(',')} misses the mirror in the fitted rig: check that observation`);
-  }
-  if (o.robust) {
-    for (const r of residuals) if (r.weight < 0.5) warnings.push(`${r.field} (${r.label}) disagrees with the rest: ${Math.abs(r.normalized).toFixed(1)} sigma off, down-weighted to ${r.weight.toFixed(2)}`);
-  } else if (worst && Math.abs(worst.normalized) > 3 && dof > 0) {
-    warnings.push(`${worst.field} (${worst.label}) is ${Math.abs(worst.normalized).toFixed(1)} sigma off: check that reading, or try --robust`);
-  }
+  const residuals = describeResiduals(fitted, set, solution.weights);
+  const worst = worstResidual(residuals);
+  const warnings = [
+    ...startWarnings(initialResiduals),
+    ...(solution.converged ? [] : [`the solver stopped before converging (${fit.reason}); the result may not be the best fit`]),
+    ...rank.degeneracies.map((d) => d.message),
+    ...solutionWarnings(residuals, worst, o.robust, m - n),
+  ];
 
   return {
     rig: fitted,
@@ -787,13 +877,13 @@ export function fitRig(rig: Rig, set: MeasurementSet, options: Partial<FitOption
     initialResiduals,
     parameters,
     worst,
-    degeneracies,
+    degeneracies: rank.degeneracies,
     warnings,
     notes,
     equations: m,
     unknowns: n,
     varianceFactor,
-    iterations,
-    converged,
+    iterations: solution.iterations,
+    converged: solution.converged,
   };
 }

@@ -1,0 +1,188 @@
+/**
+ * How the planner scores one placement: the bounds it must keep (Deb's rules, Comput. Methods Appl.
+ * Mech. Eng. 186 (2000) 311: a feasible candidate beats an infeasible one, and of two infeasible ones
+ * the smaller violation wins) and, when it keeps them, its coverage and sharpness figures.
+ */
+import { length, sub } from '../math.js';
+import { RigError, validateRigGeometry, type Rig } from '../rig/model.js';
+import { projectorFrame } from '../optics/projector.js';
+import { Tracer } from '../trace.js';
+import { bodyCorners } from '../analysis/body.js';
+import { contentSolidAngle } from '../analysis/coverage.js';
+import { ARCMIN_PER_RADIAN, cellArcmin } from '../analysis/resolution.js';
+import { cellFields, Fate, sampleFrame, type FrameSample } from '../analysis/sample.js';
+import { roundFigure, Sorted } from '../analysis/stats.js';
+import type { ProjectorFrame } from '../optics/projector.js';
+
+export type PlanObjective = 'coverage' | 'sharpness' | 'balanced';
+export const PLAN_OBJECTIVES: readonly PlanObjective[] = ['coverage', 'sharpness', 'balanced'];
+
+/** Clearance between the projector's lens and the floor, and between parts, metres (common practice). */
+export const DEFAULT_CLEARANCE = 0.05;
+
+/**
+ * The body assumed when the rig gives none, so that "the projector stays clear of the reflected light"
+ * still means something: a small installation projector, about 35 × 30 × 15 cm (from memory: a common
+ * size class; give projector.body for your own).
+ */
+export const NOMINAL_BODY = { width: 0.35, length: 0.3, height: 0.15 } as const;
+
+export interface PlanFigures {
+  coverage: number | null;
+  /** Arcminutes per projector pixel over the lit dome. */
+  median: number | null;
+  p95: number | null;
+  /** Share of the frame's pixels on the content. */
+  pixelsLit: number | null;
+  /** Lens-to-mirror depth along the lens axis: nearest and farthest lit point. */
+  focusNear: number | null;
+  focusFar: number | null;
+  bodyShadow: number | null;
+  score: number | null;
+}
+
+/** What one scoring needs beyond the rig. */
+export interface ScoringSettings {
+  objective: PlanObjective;
+  /** Frame vertices sampled. */
+  vertices: number;
+  /** Cell subdivision depth of the coverage integral. */
+  depth: number;
+  clearance: number;
+  /** Largest share of the dome the projector's body may hide. */
+  maxShadow: number;
+  /** With the sharpness objective: the least coverage a candidate must keep. */
+  minCoverage: number;
+}
+
+export interface Evaluation {
+  figures: PlanFigures;
+  /** 0 when every bound is kept; otherwise how far they are broken, summed. */
+  violation: number;
+  reasons: string[];
+}
+
+/** The bounds a placement must keep; each broken one adds to the violation with a reason. */
+export function placementViolations(rig: Rig, clearance = DEFAULT_CLEARANCE): { total: number; reasons: string[] } {
+  const reasons: string[] = [];
+  let total = 0;
+  const add = (amount: number, why: string) => {
+    if (amount > 0) {
+      total += amount;
+      reasons.push(why);
+    }
+  };
+  const radius = rig.dome.radius;
+  const { mirror, projector } = rig;
+  const floor = rig.dome.floor;
+  try {
+    validateRigGeometry(rig);
+  } catch (error) {
+    if (!(error instanceof RigError)) throw error;
+    add(1, `${error.field}: ${error.reason}`);
+  }
+  const far = length(mirror.center) + mirror.radius;
+  add(far - (radius - clearance), 'the mirror must sit inside the dome');
+  add(length(projector.position) - (radius - clearance), 'the projector must sit inside the dome');
+  if (floor !== undefined) {
+    add(-floor - (mirror.center[2] - mirror.radius), 'the mirror must sit above the floor');
+    add(-floor + clearance - projector.position[2], 'the projector must sit above the floor');
+  }
+  add(mirror.radius + clearance - length(sub(projector.position, mirror.center)), 'the projector must stay clear of the mirror');
+  if (projector.body && total === 0) {
+    for (const corner of bodyCorners(projector.body, projectorFrame(projector))) {
+      add(length(corner) - radius, "the projector's body must fit inside the dome");
+      if (floor !== undefined) add(-floor - corner[2], "the projector's body must sit above the floor");
+      add(mirror.radius - length(sub(corner, mirror.center)), "the projector's body must not touch the mirror");
+    }
+  }
+  return { total, reasons: [...new Set(reasons)] };
+}
+
+const NO_FIGURES: PlanFigures = { coverage: null, median: null, p95: null, pixelsLit: null, focusNear: null, focusFar: null, bodyShadow: null, score: null };
+
+/** Nearest and farthest lit mirror point along the lens axis, and how many samples are lit. */
+function focusDepths(samples: FrameSample, frame: ProjectorFrame): { near: number; far: number; lit: number } {
+  const forward = frame.forward;
+  let near = Infinity;
+  let far = -Infinity;
+  let lit = 0;
+  for (let k = 0; k < samples.fate.length; k++) {
+    if (samples.fate[k] !== Fate.Lit) continue;
+    lit++;
+    const ray = samples.ray;
+    const depth = samples.mirrorDistance[k] * (ray[3 * k] * forward[0] + ray[3 * k + 1] * forward[1] + ray[3 * k + 2] * forward[2]);
+    near = Math.min(near, depth);
+    far = Math.max(far, depth);
+  }
+  return { near, far, lit };
+}
+
+/** The objective's score from coverage and the 95th-percentile cell size against the ideal one. */
+function objectiveScore(objective: PlanObjective, coverage: number, idealArcmin: number, p95: number): number {
+  if (!(coverage > 0) || !Number.isFinite(p95)) return 0;
+  if (objective === 'coverage') return coverage + 1e-3 * Math.min(1, idealArcmin / p95);
+  if (objective === 'sharpness') return idealArcmin / p95;
+  return coverage * Math.sqrt(Math.min(1, idealArcmin / p95));
+}
+
+/** Scores one placement; a rig without a body gets NOMINAL_BODY. */
+export function evaluatePlacement(given: Rig, settings: ScoringSettings): Evaluation {
+  const rig: Rig = given.projector.body ? given : { ...given, projector: { ...given.projector, body: { ...NOMINAL_BODY } } };
+  const bounds = placementViolations(rig, settings.clearance);
+  if (bounds.total > 0) return { figures: NO_FIGURES, violation: bounds.total, reasons: bounds.reasons };
+  const { depth, objective, maxShadow, minCoverage } = settings;
+  const tracer = new Tracer(rig);
+  const samples = sampleFrame(tracer, { vertices: settings.vertices });
+  const cells = cellFields(samples, depth);
+  const contentAngle = contentSolidAngle(tracer);
+  const coverage = cells.total / contentAngle;
+  let shadow = 0;
+  if (rig.projector.body) shadow = (cellFields(samples, depth, (fate) => fate === Fate.Lit || fate === Fate.Shadow).total - cells.total) / contentAngle;
+  const arcmin = new Sorted(cellArcmin(cells));
+  const { near, far, lit } = focusDepths(samples, tracer.frame);
+  const [width, height] = rig.projector.resolution;
+  const idealArcmin = Math.sqrt(contentAngle / (width * height)) * ARCMIN_PER_RADIAN;
+  const p95 = arcmin.q(0.95);
+  const score = objectiveScore(objective, coverage, idealArcmin, p95);
+  const reasons: string[] = [];
+  let violation = 0;
+  if (rig.projector.body && shadow > maxShadow) {
+    violation += shadow - maxShadow;
+    reasons.push(`the projector's body hides ${(shadow * 100).toFixed(1)}% of the dome (at most ${(maxShadow * 100).toFixed(1)}% allowed)`);
+  }
+  if (rig.projector.minFocus !== undefined && near < rig.projector.minFocus) {
+    violation += rig.projector.minFocus - near;
+    reasons.push('the mirror is nearer than projector.minFocus');
+  }
+  if (lit === 0) {
+    violation += 1;
+    reasons.push('no pixel lights the content');
+  }
+  if (objective === 'sharpness' && coverage < minCoverage) {
+    violation += minCoverage - coverage;
+    reasons.push('keeps less than 90% of the current coverage');
+  }
+  return {
+    figures: {
+      coverage: roundFigure(coverage),
+      median: roundFigure(arcmin.q(0.5), 3),
+      p95: roundFigure(p95, 3),
+      pixelsLit: roundFigure(lit / samples.fate.length),
+      focusNear: roundFigure(near, 4),
+      focusFar: roundFigure(far, 4),
+      bodyShadow: roundFigure(shadow),
+      score: roundFigure(score, 5),
+    },
+    violation,
+    reasons,
+  };
+}
+
+/** Deb's comparison: true when a is better than b. */
+export function betterPlacement(a: Evaluation, b: Evaluation): boolean {
+  if (a.violation === 0 && b.violation === 0) return (a.figures.score ?? -Infinity) > (b.figures.score ?? -Infinity);
+  if (a.violation === 0) return true;
+  if (b.violation === 0) return false;
+  return a.violation < b.violation;
+}
