@@ -8,6 +8,8 @@ import { warpFrames } from '../warp/batch.js';
 import { parseFrameRange, parseShard } from '../warp/inputs.js';
 import { loadMapSource, type MapSettings } from '../warp/map-source.js';
 import { runRawPipe, parseRawSpec } from '../warp/raw-pipe.js';
+import { recogniseVideo } from '../video/recognise.js';
+import { runVideoWarp } from '../video/command.js';
 
 interface WarpOptions {
   output?: string;
@@ -25,6 +27,7 @@ interface WarpOptions {
   overwrite?: boolean;
   maxPixels: number;
   rawIn?: string;
+  ffmpeg?: string;
   json?: boolean;
 }
 
@@ -34,7 +37,7 @@ export function registerWarp(program: Command): void {
     .description('pre-warp dome-master frames (files, folders, numbered sequences) for the rig, in parallel and resumable')
     .argument('<rig-or-mesh>', 'rig file (exact per-pixel trace) or baked mesh (.glb)')
     .argument('[inputs...]', 'image files, folders (natural order) or sequences such as show/frame_%05d.png')
-    .option('-o, --output <dir>', 'output folder (never an input folder)')
+    .option('-o, --output <dir>', 'output folder (never an input folder); for a video input, the output video file')
     .addOption(new Option('--format <format>', "output format (default: each input's own)").choices([...FRAME_FORMATS]))
     .option('--quality <q>', 'JPEG/WebP quality 1-100', parseNumberIn(1, 100))
     .addOption(new Option('--filter <filter>', 'sampling filter').choices(['nearest', 'bilinear', 'area']).default(REMAP_DEFAULTS.filter))
@@ -49,10 +52,11 @@ export function registerWarp(program: Command): void {
     .option('--overwrite', 'redo frames even when the run log says they are done')
     .option('--max-pixels <n>', 'refuse frames larger than this many pixels', (s) => parsePositiveInt(s), DEFAULT_MAX_PIXELS)
     .option('--raw-in <WxH[:fmt]>', 'read raw frames (rgb24 or rgb48le) from standard input and write raw warped frames to standard output')
+    .option('--ffmpeg <path>', 'the ffmpeg program to run for video (ffprobe beside it); default SKYFOLD_FFMPEG, else the PATH')
     .option('--json', 'print a JSON summary')
     .addHelpText(
       'after',
-      '\nExamples:\n  skyfold warp rig.yaml show/ -o warped/\n  skyfold warp mesh.glb "show/frame_%05d.png" -o warped/ --frames 1-500 --jobs 4\n' +
+      '\nExamples:\n  skyfold warp rig.yaml show/ -o warped/\n  skyfold warp rig.yaml show.mp4 -o warped.mp4\n  skyfold warp mesh.glb "show/frame_%05d.png" -o warped/ --frames 1-500 --jobs 4\n' +
         '  skyfold warp rig.yaml show/ -o /shared/warped --shard 3/8\n' +
         '  ffmpeg -i show.mp4 -f rawvideo -pix_fmt rgb24 - | skyfold warp rig.yaml --raw-in 4096x4096 | ffmpeg -f rawvideo -pix_fmt rgb24 -s 1920x1200 -r 30 -i - out.mp4',
     )
@@ -72,6 +76,11 @@ export function registerWarp(program: Command): void {
         if (inputs.length > 0) throw new UserError('--raw-in reads frames from standard input: give no input files');
         const spec = parseRawSpec(opts.rawIn, opts.maxPixels);
         await runRawPipe(map, mapSettings, spec, opts.filter);
+        return;
+      }
+      const video = await recogniseVideo(inputs, opts.ffmpeg);
+      if (video) {
+        await runVideoWarp(video, map, mapSettings, { output: opts.output, filter: opts.filter, json: opts.json });
         return;
       }
       if (inputs.length === 0) throw new UserError('warp: give input frames (files, folders or a sequence pattern), or --raw-in');

@@ -1,0 +1,191 @@
+/**
+ * Warping a video to a video, frame for frame: ffmpeg decodes to raw RGB (8-bit, or 16-bit for
+ * deeper sources), the existing kernels warp each frame, a second ffmpeg encodes them at the
+ * source's exact rate and start time. The result is written under a temporary name and renamed
+ * only when every frame made it.
+ */
+import { spawn, type ChildProcess } from 'node:child_process';
+import { renameSync, rmSync, statSync } from 'node:fs';
+import { hostname } from 'node:os';
+import { basename, dirname, join, resolve } from 'node:path';
+import { remap, type ImageBuffer, type RemapFilter } from '@skyfold/warp-core';
+import { UserError } from '../errors.js';
+import type { MapSettings, MapSource } from '../warp/map-source.js';
+import { Progress } from '../warp/progress.js';
+import { StderrTail } from './child.js';
+import { planEncode, scaleMatrixName, sourceMatrix, type VideoEncodeOptions } from './encode.js';
+import { FrameReader, TruncatedFrame, writeFlushed } from './frame-stream.js';
+import { type VideoInfo } from './probe.js';
+import { formatRational } from './rational.js';
+import type { VideoTools } from './tools.js';
+
+export interface VideoWarpOptions extends VideoEncodeOptions {
+  filter: RemapFilter;
+  output: string;
+  /** Progress on a terminal. */
+  progress: boolean;
+}
+
+export interface VideoWarpSummary {
+  done: number;
+  skipped: number;
+  failed: number;
+  failures: { input: string; reason: string }[];
+  total: number;
+  output: string;
+  seconds: number;
+  video: { size: [number, number]; projector: [number, number]; rate: string; codec: string; pixFmt: string; rotation: number };
+}
+
+/** ffmpeg arguments that decode the first video stream to packed RGB, every frame once, in the source's matrix and range. */
+export function decodeArgs(info: VideoInfo, pixFmt: 'rgb24' | 'rgb48le'): string[] {
+  const args = ['-v', 'error', '-nostdin', '-i', info.path, '-map', '0:v:0', '-fps_mode', 'passthrough'];
+  if (!info.rgb) {
+    const matrix = scaleMatrixName(sourceMatrix(info.colour, info.height));
+    const range = info.colour.range ?? (info.pixFmt.startsWith('yuvj') ? 'pc' : 'tv');
+    args.push('-vf', `scale=in_color_matrix=${matrix}:in_range=${range}:out_range=pc:flags=accurate_rnd+full_chroma_int`);
+  }
+  args.push('-f', 'rawvideo', '-pix_fmt', pixFmt, 'pipe:1');
+  return args;
+}
+
+/** A child that is ended when skyfold stops early; `exited` resolves with its code. */
+interface Running {
+  child: ChildProcess;
+  stderr: StderrTail;
+  exited: Promise<number | null>;
+}
+
+function start(program: string, args: string[], stdin: 'pipe' | 'ignore'): Running {
+  const child = spawn(program, args, { stdio: [stdin, stdin === 'pipe' ? 'ignore' : 'pipe', 'pipe'] });
+  const stderr = new StderrTail(child);
+  const exited = new Promise<number | null>((resolve) => {
+    child.on('error', () => resolve(-1));
+    child.on('close', (code) => resolve(code));
+  });
+  return { child, stderr, exited };
+}
+
+function stop(r: Running | undefined): void {
+  if (r && r.child.exitCode === null && r.child.signalCode === null) r.child.kill('SIGKILL');
+}
+
+/** Warps `info`'s video through `source`'s map into `opts.output`. Throws UserError when any frame cannot be made. */
+export async function warpVideo(tools: VideoTools, source: MapSource, mapSettings: MapSettings, info: VideoInfo, opts: VideoWarpOptions): Promise<VideoWarpSummary> {
+  const t0 = performance.now();
+  if (info.width !== info.height) {
+    throw new UserError(`${info.path}: the video is ${info.width}x${info.height}; a dome master is square (a fisheye circle in a square frame)`);
+  }
+  const output = resolve(opts.output);
+  try {
+    const a = statSync(output);
+    const b = statSync(info.path);
+    if (a.dev === b.dev && a.ino === b.ino) throw new UserError(`${opts.output}: is the input video; write the warped video to another file`);
+  } catch (e) {
+    if (e instanceof UserError) throw e;
+  }
+  const deep = info.bitDepth > 8;
+  const pixFmt = deep ? 'rgb48le' : 'rgb24';
+  const plan = planEncode(output, opts, info.colour, deep);
+  const map = source.build([info.width, info.height], mapSettings);
+  const bps = deep ? 2 : 1;
+  const inBytes = info.width * info.height * 3 * bps;
+  const outBytes = map.width * map.height * 3 * bps;
+  const inBuf = Buffer.alloc(inBytes);
+  const src: ImageBuffer = {
+    width: info.width,
+    height: info.height,
+    channels: 3,
+    data: deep ? new Uint16Array(inBuf.buffer, inBuf.byteOffset, inBytes / 2) : new Uint8Array(inBuf.buffer, inBuf.byteOffset, inBytes),
+  };
+  const outBuf = Buffer.alloc(outBytes);
+  const out: ImageBuffer = {
+    width: map.width,
+    height: map.height,
+    channels: 3,
+    data: deep ? new Uint16Array(outBuf.buffer, outBuf.byteOffset, outBytes / 2) : new Uint8Array(outBuf.buffer, outBuf.byteOffset, outBytes),
+  };
+
+  const host = hostname().replace(/[^A-Za-z0-9]/g, '');
+  const temp = join(dirname(output), `.${basename(output)}.skyfold-partial-${host}-${process.pid}`);
+  const rate = formatRational(info.rate);
+  const encodeArgs = ['-v', 'error', '-nostdin', '-y', '-f', 'rawvideo', '-pix_fmt', pixFmt, '-video_size', `${map.width}x${map.height}`, '-framerate', rate];
+  encodeArgs.push('-i', 'pipe:0', '-map', '0:v', ...plan.args);
+  // the first frame keeps its presentation time (an output offset: -itsoffset on the raw input lands half a frame off in Matroska)
+  if (info.startTime !== 0) encodeArgs.push('-output_ts_offset', String(info.startTime));
+  encodeArgs.push('-f', plan.muxer, temp);
+
+  let decoder: Running | undefined;
+  let encoder: Running | undefined;
+  let frames = 0;
+  const progress = new Progress(info.frameCount, process.stderr, opts.progress && Boolean(process.stderr.isTTY));
+  const onSignal = () => {
+    stop(decoder);
+    stop(encoder);
+    rmSync(temp, { force: true });
+    progress.finish();
+    process.stderr.write(`skyfold: stopped after ${frames} of ${info.frameCount} frames; nothing was written to ${opts.output}\n`);
+    process.exit(130);
+  };
+  process.once('SIGINT', onSignal);
+  process.once('SIGTERM', onSignal);
+  try {
+    decoder = start(tools.ffmpeg, decodeArgs(info, pixFmt), 'ignore');
+    encoder = start(tools.ffmpeg, encodeArgs, 'pipe');
+    const sink = encoder.child.stdin!;
+    sink.on('error', () => {}); // a closed pipe is reported from the encoder's exit below
+    const reader = new FrameReader(decoder.child.stdout!, inBytes);
+    let encoderGone = false;
+    void encoder.exited.then(() => (encoderGone = true));
+    for (;;) {
+      let more: boolean;
+      try {
+        more = await reader.next(inBuf);
+      } catch (e) {
+        if (!(e instanceof TruncatedFrame)) throw e;
+        more = false;
+      }
+      if (!more) break;
+      remap(src, map, { filter: opts.filter, out });
+      if (encoderGone) break;
+      try {
+        await writeFlushed(sink, outBuf);
+      } catch {
+        break;
+      }
+      frames++;
+      progress.tick(String(frames), true);
+    }
+    sink.end();
+    const [dcode, ecode] = await Promise.all([decoder.exited, encoder.exited]);
+    progress.finish();
+    if (ecode !== 0) throw new UserError(`${opts.output}: ffmpeg could not write the video: ${encoder.stderr.lastLine || `exit ${ecode}`}`);
+    if (dcode !== 0) {
+      throw new UserError(`${info.path}: decoding failed at frame ${frames + 1} of ${info.frameCount}: ${decoder.stderr.lastLine || `exit ${dcode}`}`);
+    }
+    if (frames !== info.frameCount) {
+      const missing = frames < info.frameCount ? `frames ${frames + 1}-${info.frameCount} did not decode (a damaged stream?)` : `${frames - info.frameCount} more than its packets`;
+      throw new UserError(`${info.path}: got ${frames} of ${info.frameCount} frames: ${missing}; nothing was written`);
+    }
+    renameSync(temp, output);
+  } catch (e) {
+    stop(decoder);
+    stop(encoder);
+    await Promise.all([decoder?.exited, encoder?.exited]);
+    rmSync(temp, { force: true });
+    throw e;
+  } finally {
+    process.removeListener('SIGINT', onSignal);
+    process.removeListener('SIGTERM', onSignal);
+  }
+  return {
+    done: frames,
+    skipped: 0,
+    failed: 0,
+    failures: [],
+    total: info.frameCount,
+    output: opts.output,
+    seconds: (performance.now() - t0) / 1000,
+    video: { size: [info.width, info.height], projector: [map.width, map.height], rate, codec: plan.codec, pixFmt: info.pixFmt, rotation: info.rotation },
+  };
+}
