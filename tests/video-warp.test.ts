@@ -4,91 +4,21 @@
  * Every case is skipped, saying so, where ffmpeg is not installed.
  */
 import { spawnSync } from 'node:child_process';
-import { existsSync, mkdtempSync, readdirSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
+import { existsSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
-import { fileURLToPath } from 'node:url';
-import { afterAll, beforeAll, describe, expect, it, vi } from 'vitest';
-import { findVideoTools, firstOffGrid, main, probeVideo, tryVideoTools } from '@skyfold/warp-cli';
-
-const ROOT = fileURLToPath(new URL('..', import.meta.url));
-const TOOLS = tryVideoTools(undefined);
-if (!TOOLS) console.warn('video tests skipped: ffmpeg and ffprobe are not installed (apt-get install ffmpeg)');
-const PROJ: [number, number] = [96, 60];
+import { beforeAll, describe, expect, it } from 'vitest';
+import { findVideoTools, firstOffGrid, probeVideo } from '@skyfold/warp-cli';
+import { ffmpeg, frameTimes, partials, PROJ, setUpVideoWork, skyfold, streamField, testVideo as makeVideo, TOOLS } from './video-fixtures.js';
 
 let work: string;
 let rig: string;
 
-function ffmpeg(args: string[]): void {
-  const r = spawnSync(TOOLS!.ffmpeg, ['-v', 'error', '-nostdin', '-y', ...args], { encoding: 'utf8' });
-  if (r.status !== 0) throw new Error(`ffmpeg ${args.join(' ')}: ${r.stderr}`);
-}
-
-function ffprobe(args: string[]): string {
-  const r = spawnSync(TOOLS!.ffprobe, ['-v', 'error', ...args], { encoding: 'utf8' });
-  if (r.status !== 0) throw new Error(`ffprobe ${args.join(' ')}: ${r.stderr}`);
-  return r.stdout;
-}
-
-/** A testsrc video: `frames` frames of size×size at `rate`, with extra output arguments. */
-function testVideo(name: string, size: number | [number, number], rate: string, frames: number, extra: string[]): string {
-  const path = join(work, name);
-  const [w, h] = typeof size === 'number' ? [size, size] : size;
-  ffmpeg(['-f', 'lavfi', '-i', `testsrc=size=${w}x${h}:rate=${rate}`, '-frames:v', String(frames), ...extra, path]);
-  return path;
-}
-
-/** Presentation times of the video frames, as ffprobe reads them. */
-function frameTimes(path: string): string[] {
-  return ffprobe(['-select_streams', 'v:0', '-show_entries', 'frame=pts_time', '-of', 'csv=p=0', path])
-    .split('\n')
-    .map((l) => l.split(',')[0].trim())
-    .filter(Boolean);
-}
-
-function streamField(path: string, field: string): string {
-  return ffprobe(['-select_streams', 'v:0', '-show_entries', `stream=${field}`, '-of', 'default=nw=1:nk=1', path]).trim();
-}
-
-interface Ran {
-  code: number;
-  stdout: string;
-  stderr: string;
-}
-
-/** Runs the CLI in this process, capturing what it prints. */
-async function skyfold(args: string[]): Promise<Ran> {
-  let stdout = '';
-  let stderr = '';
-  const out = vi.spyOn(process.stdout, 'write').mockImplementation((s: string | Uint8Array) => ((stdout += String(s)), true));
-  const err = vi.spyOn(process.stderr, 'write').mockImplementation((s: string | Uint8Array) => ((stderr += String(s)), true));
-  try {
-    const code = await main(['node', 'skyfold', ...args]);
-    return { code, stdout, stderr };
-  } finally {
-    out.mockRestore();
-    err.mockRestore();
-    process.exitCode = undefined;
-  }
-}
-
-function noPartials(dir: string): string[] {
-  return readdirSync(dir).filter((n) => n.includes('skyfold-partial'));
-}
-
 beforeAll(() => {
-  if (!existsSync(join(ROOT, 'packages', 'warp-cli', 'dist', 'main.js'))) throw new Error('build first: npx tsc -b');
-  work = mkdtempSync(join(tmpdir(), 'skyfold-video-'));
-  const text = readFileSync(join(ROOT, 'fixtures', 'demo-rig.yaml'), 'utf8');
-  const small = text.replace(/resolution:\s*\[\s*\d+\s*,\s*\d+\s*\]/, `resolution: [${PROJ[0]}, ${PROJ[1]}]`);
-  if (small === text) throw new Error('fixtures/demo-rig.yaml: no projector resolution line to shrink');
-  rig = join(work, 'rig.yaml');
-  writeFileSync(rig, small);
+  ({ work, rig } = setUpVideoWork('warp'));
 });
 
-afterAll(() => {
-  if (work) rmSync(work, { recursive: true, force: true });
-});
+const testVideo = (name: string, size: number | [number, number], rate: string, frames: number, extra: string[]) => makeVideo(work, name, size, rate, frames, extra);
 
 describe('finding ffmpeg', () => {
   it('names how to install it when it is not on the PATH', () => {
@@ -181,7 +111,7 @@ describe.skipIf(!TOOLS)('warping a video', () => {
     expect(streamField(output, 'r_frame_rate')).toBe('30000/1001');
     expect(streamField(output, 'nb_frames')).toBe('9');
     expect(frameTimes(output)).toEqual(frameTimes(input));
-    expect(noPartials(work)).toEqual([]);
+    expect(partials(work)).toEqual([]);
   });
 
   it('keeps a late start time', async () => {

@@ -36,7 +36,13 @@ export class StderrTail {
     return this.chunks.join('');
   }
 
-  /** The child's last non-empty line, for a one-line error. */
+  /** The child's first non-empty line without ffmpeg's "[muxer @ 0x…]" prefix: the cause, for a one-line error. */
+  get firstLine(): string {
+    const line = this.text.split('\n').map((l) => l.trim()).find(Boolean) ?? '';
+    return line.replace(/^\[[^\]]* @ 0x[0-9a-f]+\]\s*/, '');
+  }
+
+  /** The child's last non-empty line. */
   get lastLine(): string {
     const lines = this.text.split('\n').map((l) => l.trim()).filter(Boolean);
     return lines[lines.length - 1] ?? '';

@@ -38,14 +38,25 @@ export interface VideoInfo {
   colour: VideoColour;
   /** Degrees clockwise the player turns the coded picture to show it (0, 90, 180, 270). */
   rotation: number;
-  /** Other streams carried over: counts by type. */
-  streams: { audio: number; subtitle: number; data: number; attachment: number };
+  /** The warped stream's index in the file. */
+  videoIndex: number;
+  /** Earliest start of any stream (the container's start time), seconds. */
+  fileStart: number;
+  /** The file's other streams, in file order: sound, subtitles, data, attachments, further pictures. */
+  others: OtherStream[];
+}
+
+export interface OtherStream {
+  index: number;
+  type: 'audio' | 'subtitle' | 'data' | 'attachment' | 'video';
+  codec: string;
 }
 
 interface ProbeStream {
   index: number;
   codec_type?: string;
   codec_name?: string;
+  codec_tag_string?: string;
   width?: number;
   height?: number;
   pix_fmt?: string;
@@ -64,7 +75,7 @@ interface ProbeStream {
 
 interface ProbeOutput {
   streams?: ProbeStream[];
-  format?: { format_name?: string };
+  format?: { format_name?: string; start_time?: string };
 }
 
 /** Single-picture formats ffprobe also opens; these are images, not videos. */
@@ -111,8 +122,8 @@ async function probeJson(tools: VideoTools, path: string): Promise<ProbeOutput |
  * The first video stream's timestamps, sorted (decode order is not presentation order): the frame
  * count, the first frame's time and whether the frames sit on a constant-rate grid.
  */
-async function scanFrames(tools: VideoTools, path: string): Promise<number[]> {
-  const r = await runToEnd(tools.ffprobe, ['-v', 'error', '-select_streams', 'v:0', '-show_entries', 'packet=pts,dts', '-of', 'csv=p=0', '--', path]);
+async function scanFrames(tools: VideoTools, path: string, index: number): Promise<number[]> {
+  const r = await runToEnd(tools.ffprobe, ['-v', 'error', '-select_streams', String(index), '-show_entries', 'packet=pts,dts', '-of', 'csv=p=0', '--', path]);
   if (r.code !== 0) throw new UserError(`${path}: cannot read the video's packets: ${r.stderr.trim().split('\n').pop() ?? ''}`);
   const ts: number[] = [];
   for (const line of r.stdout.split('\n')) {
@@ -152,7 +163,7 @@ export async function probeVideo(tools: VideoTools, path: string): Promise<Video
   const rate = parseRational(v.r_frame_rate) ?? parseRational(v.avg_frame_rate);
   if (!rate) throw new UserError(`${path}: the video stream gives no frame rate`);
   const timeBase = parseRational(v.time_base) ?? { num: 1, den: 90000 };
-  const ticks = await scanFrames(tools, path);
+  const ticks = await scanFrames(tools, path, v.index);
   if (ticks.length === 0) throw new UserError(`${path}: the video stream holds no frames`);
   if (ticks.some(Number.isNaN)) throw new UserError(`${path}: some frames carry no timestamp; remux it first (ffmpeg -i IN -c copy OUT.mkv)`);
   const off = firstOffGrid(ticks, rate, timeBase);
@@ -166,7 +177,14 @@ export async function probeVideo(tools: VideoTools, path: string): Promise<Video
   const rotation = rotationOf(v);
   const turned = rotation === 90 || rotation === 270;
   const pixFmt = v.pix_fmt ?? 'unknown';
-  const count = (t: string) => streams.filter((s) => s.codec_type === t).length;
+  const others: OtherStream[] = [];
+  for (const s of streams) {
+    const type = s.codec_type;
+    if (s === v || (type !== 'audio' && type !== 'subtitle' && type !== 'data' && type !== 'attachment' && type !== 'video')) continue;
+    others.push({ index: s.index, type, codec: s.codec_name ?? s.codec_tag_string ?? 'unknown' });
+  }
+  const startTime = (ticks[0] * timeBase.num) / timeBase.den;
+  const fileStart = Number(p.format?.start_time);
   const range = known(v.color_range);
   return {
     path,
@@ -176,7 +194,7 @@ export async function probeVideo(tools: VideoTools, path: string): Promise<Video
     height: turned ? v.width : v.height,
     rate,
     frameCount: ticks.length,
-    startTime: (ticks[0] * timeBase.num) / timeBase.den,
+    startTime,
     pixFmt,
     bitDepth: bitDepthOf(pixFmt, v.bits_per_raw_sample),
     rgb: isRgbPixFmt(pixFmt),
@@ -187,7 +205,9 @@ export async function probeVideo(tools: VideoTools, path: string): Promise<Video
       primaries: known(v.color_primaries),
     },
     rotation,
-    streams: { audio: count('audio'), subtitle: count('subtitle'), data: count('data'), attachment: count('attachment') },
+    videoIndex: v.index,
+    fileStart: Number.isFinite(fileStart) ? Math.min(fileStart, startTime) : startTime,
+    others,
   };
 }
 

@@ -12,6 +12,8 @@ import { remap, type ImageBuffer, type RemapFilter } from '@skyfold/warp-core';
 import { UserError } from '../errors.js';
 import type { MapSettings, MapSource } from '../warp/map-source.js';
 import { Progress } from '../warp/progress.js';
+import { warn } from '../messages.js';
+import { planCarry } from './carry.js';
 import { StderrTail } from './child.js';
 import { planEncode, scaleMatrixName, sourceMatrix, type VideoEncodeOptions } from './encode.js';
 import { FrameReader, TruncatedFrame, writeFlushed } from './frame-stream.js';
@@ -39,7 +41,7 @@ export interface VideoWarpSummary {
 
 /** ffmpeg arguments that decode the first video stream to packed RGB, every frame once, in the source's matrix and range. */
 export function decodeArgs(info: VideoInfo, pixFmt: 'rgb24' | 'rgb48le'): string[] {
-  const args = ['-v', 'error', '-nostdin', '-i', info.path, '-map', '0:v:0', '-fps_mode', 'passthrough'];
+  const args = ['-v', 'error', '-nostdin', '-i', info.path, '-map', `0:${info.videoIndex}`, '-fps_mode', 'passthrough'];
   if (!info.rgb) {
     const matrix = scaleMatrixName(sourceMatrix(info.colour, info.height));
     const range = info.colour.range ?? (info.pixFmt.startsWith('yuvj') ? 'pc' : 'tv');
@@ -109,10 +111,16 @@ export async function warpVideo(tools: VideoTools, source: MapSource, mapSetting
   const host = hostname().replace(/[^A-Za-z0-9]/g, '');
   const temp = join(dirname(output), `.${basename(output)}.skyfold-partial-${host}-${process.pid}`);
   const rate = formatRational(info.rate);
+  const carry = planCarry(info, plan.muxer);
+  for (const d of carry.dropped) warn(`${info.path}: left out ${d}`);
   const encodeArgs = ['-v', 'error', '-nostdin', '-y', '-f', 'rawvideo', '-pix_fmt', pixFmt, '-video_size', `${map.width}x${map.height}`, '-framerate', rate];
-  encodeArgs.push('-i', 'pipe:0', '-map', '0:v', ...plan.args);
-  // the first frame keeps its presentation time (an output offset: -itsoffset on the raw input lands half a frame off in Matroska)
-  if (info.startTime !== 0) encodeArgs.push('-output_ts_offset', String(info.startTime));
+  // times as in the source: ffmpeg starts each input at zero, so the frames are placed after the
+  // file's earliest stream and the whole output moved to the file's start (an output offset:
+  // -itsoffset alone lands half a frame off in Matroska)
+  const lead = info.startTime - info.fileStart;
+  if (lead > 0) encodeArgs.push('-itsoffset', String(lead));
+  encodeArgs.push('-i', 'pipe:0', '-i', info.path, '-map', '0:v', ...carry.args, ...plan.args);
+  if (info.fileStart !== 0) encodeArgs.push('-output_ts_offset', String(info.fileStart));
   encodeArgs.push('-f', plan.muxer, temp);
 
   let decoder: Running | undefined;
@@ -135,33 +143,25 @@ export async function warpVideo(tools: VideoTools, source: MapSource, mapSetting
     const sink = encoder.child.stdin!;
     sink.on('error', () => {}); // a closed pipe is reported from the encoder's exit below
     const reader = new FrameReader(decoder.child.stdout!, inBytes);
-    let encoderGone = false;
-    void encoder.exited.then(() => (encoderGone = true));
+    // the encoder may stop early (a refused stream, a full disk): every wait below also ends then
+    const gone = Symbol('encoder gone');
+    const encoderGone = encoder.exited.then(() => gone);
     for (;;) {
-      let more: boolean;
-      try {
-        more = await reader.next(inBuf);
-      } catch (e) {
-        if (!(e instanceof TruncatedFrame)) throw e;
-        more = false;
-      }
-      if (!more) break;
+      const more = await Promise.race([reader.next(inBuf).catch((e: unknown) => (e instanceof TruncatedFrame ? false : Promise.reject(e))), encoderGone]);
+      if (more !== true) break;
       remap(src, map, { filter: opts.filter, out });
-      if (encoderGone) break;
-      try {
-        await writeFlushed(sink, outBuf);
-      } catch {
-        break;
-      }
+      const wrote = await Promise.race([writeFlushed(sink, outBuf).catch(() => gone), encoderGone]);
+      if (wrote === gone) break;
       frames++;
       progress.tick(String(frames), true);
     }
     sink.end();
+    if (encoder.child.exitCode !== null || encoder.child.signalCode !== null) stop(decoder);
     const [dcode, ecode] = await Promise.all([decoder.exited, encoder.exited]);
     progress.finish();
-    if (ecode !== 0) throw new UserError(`${opts.output}: ffmpeg could not write the video: ${encoder.stderr.lastLine || `exit ${ecode}`}`);
+    if (ecode !== 0) throw new UserError(`${opts.output}: ffmpeg could not write the video: ${encoder.stderr.firstLine || `exit ${ecode}`}`);
     if (dcode !== 0) {
-      throw new UserError(`${info.path}: decoding failed at frame ${frames + 1} of ${info.frameCount}: ${decoder.stderr.lastLine || `exit ${dcode}`}`);
+      throw new UserError(`${info.path}: decoding failed at frame ${frames + 1} of ${info.frameCount}: ${decoder.stderr.firstLine || `exit ${dcode}`}`);
     }
     if (frames !== info.frameCount) {
       const missing = frames < info.frameCount ? `frames ${frames + 1}-${info.frameCount} did not decode (a damaged stream?)` : `${frames - info.frameCount} more than its packets`;
