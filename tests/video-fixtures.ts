@@ -1,16 +1,13 @@
 /**
- * Shared by the video tests: tiny synthetic videos made with ffmpeg, ffprobe read-outs, and the
- * CLI run in this process. Everything here needs ffmpeg; `TOOLS` is undefined without it.
+ * Shared by the video tests: tiny synthetic videos made with ffmpeg, and ffprobe read-outs (the
+ * in-process runner is support.ts's). Everything here needs ffmpeg; `TOOLS` is undefined without it.
  */
 import { spawnSync } from 'node:child_process';
-import { existsSync, mkdtempSync, readdirSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
-import { tmpdir } from 'node:os';
+import { readdirSync, writeFileSync } from 'node:fs';
 import { join } from 'node:path';
-import { fileURLToPath } from 'node:url';
-import { afterAll, vi } from 'vitest';
-import { main, tryVideoTools } from '@skyfold/warp-cli';
+import { tryVideoTools } from '@skyfold/warp-cli';
+import { demoRigText, skyfold, tempDir } from './support.js';
 
-const ROOT = fileURLToPath(new URL('..', import.meta.url));
 export const TOOLS = tryVideoTools(undefined);
 /** The projector size of the small rig the video tests warp for. */
 export const PROJ: [number, number] = [96, 60];
@@ -66,46 +63,18 @@ export function decodedFrames(path: string, pixFmt: 'rgb24' | 'rgb48le' = 'rgb24
   return r.stdout;
 }
 
-export interface Ran {
-  code: number;
-  stdout: string;
-  stderr: string;
-}
-
-/** Runs the CLI in this process, capturing what it prints. */
-export async function skyfold(args: string[]): Promise<Ran> {
-  let stdout = '';
-  let stderr = '';
-  const out = vi.spyOn(process.stdout, 'write').mockImplementation((s: string | Uint8Array) => ((stdout += String(s)), true));
-  const err = vi.spyOn(process.stderr, 'write').mockImplementation((s: string | Uint8Array) => ((stderr += String(s)), true));
-  try {
-    const code = await main(['node', 'skyfold', ...args]);
-    return { code, stdout, stderr };
-  } finally {
-    out.mockRestore();
-    err.mockRestore();
-    process.exitCode = undefined;
-  }
-}
+export { skyfold };
 
 /** Temporary files a video run left in `dir` (there must be none). */
 export function partials(dir: string): string[] {
   return readdirSync(dir).filter((n) => n.includes('skyfold-partial'));
 }
 
-/**
- * A temporary folder with a small copy of the demo rig (projector PROJ), removed after the file's
- * tests. Says once per file when the video tests are skipped.
- */
+/** A temporary folder with a small copy of the demo rig (projector PROJ). Says once per file when the video tests are skipped. */
 export function setUpVideoWork(name: string): { work: string; rig: string } {
   if (!TOOLS) console.warn(`${name}: video tests skipped: ffmpeg and ffprobe are not installed (apt-get install ffmpeg)`);
-  if (!existsSync(join(ROOT, 'packages', 'warp-cli', 'dist', 'main.js'))) throw new Error('build first: npx tsc -b');
-  const work = mkdtempSync(join(tmpdir(), `skyfold-video-${name}-`));
-  const text = readFileSync(join(ROOT, 'fixtures', 'demo-rig.yaml'), 'utf8');
-  const small = text.replace(/resolution:\s*\[\s*\d+\s*,\s*\d+\s*\]/, `resolution: [${PROJ[0]}, ${PROJ[1]}]`);
-  if (small === text) throw new Error('fixtures/demo-rig.yaml: no projector resolution line to shrink');
+  const work = tempDir(`video-${name}`);
   const rig = join(work, 'rig.yaml');
-  writeFileSync(rig, small);
-  afterAll(() => rmSync(work, { recursive: true, force: true }));
+  writeFileSync(rig, demoRigText(PROJ));
   return { work, rig };
 }

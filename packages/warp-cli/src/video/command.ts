@@ -18,6 +18,7 @@ export async function runVideoWarp(video: VideoInput, map: MapSource, mapSetting
   if (!o.output) throw new UserError(`warp: give the output video with -o (a ${VIDEO_EXTENSIONS.join(' ')} file)`);
   if (!isVideoPath(o.output)) throw new UserError(`-o ${o.output}: a video warps to a video file: name it ${VIDEO_EXTENSIONS.join(' ')}`);
   const summary = await warpVideo(video.tools, map, mapSettings, video.info, { ...o, output: o.output, progress: !o.json });
+  if (!summary) return; // stopped by a signal
   if (o.json) printJson(summary);
   else {
     const v = summary.video;

@@ -5,6 +5,7 @@
 import { accessSync, constants, statSync } from 'node:fs';
 import { basename, delimiter, dirname, join } from 'node:path';
 import { UserError } from '../errors.js';
+import { runContext } from '../io/run-context.js';
 
 export interface VideoTools {
   ffmpeg: string;
@@ -42,7 +43,7 @@ function probeBeside(ffmpeg: string): string | undefined {
  * The ffmpeg and ffprobe to run. `given` is --ffmpeg's value (a program or the folder holding it);
  * a missing program is a UserError (exit 2) saying how to install it.
  */
-export function findVideoTools(given: string | undefined, env: NodeJS.ProcessEnv = process.env): VideoTools {
+export function findVideoTools(given: string | undefined, env: Record<string, string | undefined> = runContext().env): VideoTools {
   const explicit = given ?? (env.SKYFOLD_FFMPEG || undefined);
   const what = given !== undefined ? '--ffmpeg' : 'SKYFOLD_FFMPEG';
   if (explicit !== undefined) {
@@ -64,7 +65,7 @@ export function findVideoTools(given: string | undefined, env: NodeJS.ProcessEnv
 }
 
 /** The tools when present, else undefined (to recognise a video by probing only when one can probe). */
-export function tryVideoTools(given: string | undefined, env: NodeJS.ProcessEnv = process.env): VideoTools | undefined {
+export function tryVideoTools(given: string | undefined, env: Record<string, string | undefined> = runContext().env): VideoTools | undefined {
   try {
     return findVideoTools(given, env);
   } catch {

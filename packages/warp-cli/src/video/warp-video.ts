@@ -10,6 +10,7 @@ import { hostname } from 'node:os';
 import { basename, dirname, join, resolve } from 'node:path';
 import { remap, type ImageBuffer, type RemapFilter } from '@skyfold/warp-core';
 import { UserError } from '../errors.js';
+import { runContext, setExitCode, writeErr } from '../io/run-context.js';
 import type { MapSettings, MapSource } from '../warp/map-source.js';
 import { Progress } from '../warp/progress.js';
 import { warn } from '../messages.js';
@@ -72,8 +73,13 @@ function stop(r: Running | undefined): void {
   if (r && r.child.exitCode === null && r.child.signalCode === null) r.child.kill('SIGKILL');
 }
 
-/** Warps `info`'s video through `source`'s map into `opts.output`. Throws UserError when any frame cannot be made. */
-export async function warpVideo(tools: VideoTools, source: MapSource, mapSettings: MapSettings, info: VideoInfo, opts: VideoWarpOptions): Promise<VideoWarpSummary> {
+class Stopped extends Error {}
+
+/**
+ * Warps `info`'s video through `source`'s map into `opts.output`. Throws UserError when any frame
+ * cannot be made; undefined when a signal stopped the run (exit code 130, nothing written).
+ */
+export async function warpVideo(tools: VideoTools, source: MapSource, mapSettings: MapSettings, info: VideoInfo, opts: VideoWarpOptions): Promise<VideoWarpSummary | undefined> {
   const t0 = performance.now();
   if (info.width !== info.height) {
     throw new UserError(`${info.path}: the video is ${info.width}x${info.height}; a dome master is square (a fisheye circle in a square frame)`);
@@ -126,15 +132,12 @@ export async function warpVideo(tools: VideoTools, source: MapSource, mapSetting
   let decoder: Running | undefined;
   let encoder: Running | undefined;
   let frames = 0;
-  const progress = new Progress(info.frameCount, process.stderr, opts.progress && Boolean(process.stderr.isTTY));
-  const onSignal = () => {
-    stop(decoder);
-    stop(encoder);
-    rmSync(temp, { force: true });
-    progress.finish();
-    process.stderr.write(`skyfold: stopped after ${frames} of ${info.frameCount} frames; nothing was written to ${opts.output}\n`);
-    process.exit(130);
-  };
+  const stderr = runContext().stderr;
+  const progress = new Progress(info.frameCount, stderr, opts.progress && Boolean(stderr.isTTY));
+  // a signal ends the children and the run; nothing is left under the output's name
+  let stopping = false;
+  let onSignal: () => void = () => {};
+  const stopped = new Promise<symbol>((resolve) => (onSignal = () => ((stopping = true), resolve(Symbol('stopped')))));
   process.once('SIGINT', onSignal);
   process.once('SIGTERM', onSignal);
   try {
@@ -147,14 +150,15 @@ export async function warpVideo(tools: VideoTools, source: MapSource, mapSetting
     const gone = Symbol('encoder gone');
     const encoderGone = encoder.exited.then(() => gone);
     for (;;) {
-      const more = await Promise.race([reader.next(inBuf).catch((e: unknown) => (e instanceof TruncatedFrame ? false : Promise.reject(e))), encoderGone]);
+      const more = await Promise.race([reader.next(inBuf).catch((e: unknown) => (e instanceof TruncatedFrame ? false : Promise.reject(e))), encoderGone, stopped]);
       if (more !== true) break;
       remap(src, map, { filter: opts.filter, out });
-      const wrote = await Promise.race([writeFlushed(sink, outBuf).catch(() => gone), encoderGone]);
-      if (wrote === gone) break;
+      const wrote = await Promise.race([writeFlushed(sink, outBuf).catch(() => gone), encoderGone, stopped]);
+      if (wrote === gone || stopping) break;
       frames++;
       progress.tick(String(frames), true);
     }
+    if (stopping) throw new Stopped();
     sink.end();
     if (encoder.child.exitCode !== null || encoder.child.signalCode !== null) stop(decoder);
     const [dcode, ecode] = await Promise.all([decoder.exited, encoder.exited]);
@@ -173,7 +177,11 @@ export async function warpVideo(tools: VideoTools, source: MapSource, mapSetting
     stop(encoder);
     await Promise.all([decoder?.exited, encoder?.exited]);
     rmSync(temp, { force: true });
-    throw e;
+    if (!(e instanceof Stopped)) throw e;
+    progress.finish();
+    writeErr(`skyfold: stopped after ${frames} of ${info.frameCount} frames; nothing was written to ${opts.output}\n`);
+    setExitCode(130);
+    return undefined;
   } finally {
     process.removeListener('SIGINT', onSignal);
     process.removeListener('SIGTERM', onSignal);
