@@ -4,7 +4,7 @@
  * Every case is skipped, saying so, where ffmpeg is not installed.
  */
 import { spawnSync } from 'node:child_process';
-import { existsSync, writeFileSync } from 'node:fs';
+import { existsSync, readFileSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { beforeAll, describe, expect, it } from 'vitest';
@@ -162,5 +162,34 @@ describe.skipIf(!TOOLS)('warping a video', () => {
     const r = await skyfold(['warp', rig, input, '-o', join(work, 'frames-out')]);
     expect(r.code).toBe(2);
     expect(r.stderr).toMatch(/a video warps to a video file: name it \.mp4 \.mov \.mkv \.webm \.avi/);
+  });
+});
+
+describe.skipIf(!TOOLS)('a damaged video', () => {
+  it('fails, naming where, rather than warping concealed or dropped frames', async () => {
+    const input = testVideo('damaged.mkv', 128, '25', 50, ['-c:v', 'libx264', '-g', '10']);
+    const bytes = readFileSync(input);
+    // overwrite 3000 bytes in the middle of the file (packet data and cluster headers) with a fixed pattern
+    for (let i = 0; i < 3000; i++) bytes[(bytes.length >> 1) + i] = (i * 151 + 7) & 255;
+    writeFileSync(input, bytes);
+    const output = join(work, 'damaged-out.mp4');
+    const r = await skyfold(['warp', rig, input, '-o', output]);
+    expect(r.code).toBe(2);
+    expect(r.stderr).toMatch(/^skyfold: .*damaged\.mkv: damaged stream from (about )?frame \d+ .*: .+; nothing was written\n$/);
+    expect(existsSync(output)).toBe(false);
+    expect(partials(work)).toEqual([]);
+  });
+
+  it('fails on picture data the decoder finds damaged, where the container is intact', async () => {
+    // in .mp4 the packet index sits apart from the picture data: damage the data, keep the index
+    const input = testVideo('concealed.mp4', 128, '25', 50, ['-c:v', 'libx264', '-g', '10', '-movflags', '+faststart']);
+    const bytes = readFileSync(input);
+    for (let i = 0; i < 3000; i++) bytes[(bytes.length >> 1) + i] = (i * 151 + 7) & 255;
+    writeFileSync(input, bytes);
+    const output = join(work, 'concealed-out.mp4');
+    const r = await skyfold(['warp', rig, input, '-o', output]);
+    expect(r.code).toBe(2);
+    expect(r.stderr).toMatch(/^skyfold: .*concealed\.mp4: damaged stream from about frame \d+ of 50 on: .+; nothing was written\n$/);
+    expect(existsSync(output)).toBe(false);
   });
 });

@@ -10,6 +10,7 @@ import { loadMapSource, type MapSettings } from '../warp/map-source.js';
 import { runRawPipe, parseRawSpec } from '../warp/raw-pipe.js';
 import { recogniseVideo } from '../video/recognise.js';
 import { runVideoWarp } from '../video/command.js';
+import { VIDEO_CODECS, type VideoCodec } from '../video/encode.js';
 
 interface WarpOptions {
   output?: string;
@@ -28,6 +29,9 @@ interface WarpOptions {
   maxPixels: number;
   rawIn?: string;
   ffmpeg?: string;
+  codec?: VideoCodec;
+  crf?: number;
+  preset?: string;
   json?: boolean;
 }
 
@@ -52,6 +56,9 @@ export function registerWarp(program: Command): void {
     .option('--overwrite', 'redo frames even when the run log says they are done')
     .option('--max-pixels <n>', 'refuse frames larger than this many pixels', (s) => parsePositiveInt(s), DEFAULT_MAX_PIXELS)
     .option('--raw-in <WxH[:fmt]>', 'read raw frames (rgb24 or rgb48le) from standard input and write raw warped frames to standard output')
+    .addOption(new Option('--codec <codec>', 'codec of a warped video (default: h264 for .mp4 .mkv .avi, prores 422 HQ for .mov, vp9 for .webm)').choices([...VIDEO_CODECS]))
+    .option('--crf <n>', 'quality of a warped h264, hevc or vp9 video, lower is better (default 18; vp9 24)', parseNumberIn(0, 63))
+    .option('--preset <name>', 'x264/x265 speed preset of a warped video (default medium)')
     .option('--ffmpeg <path>', 'the ffmpeg program to run for video (ffprobe beside it); default SKYFOLD_FFMPEG, else the PATH')
     .option('--json', 'print a JSON summary')
     .addHelpText(
@@ -80,9 +87,10 @@ export function registerWarp(program: Command): void {
       }
       const video = await recogniseVideo(inputs, opts.ffmpeg);
       if (video) {
-        await runVideoWarp(video, map, mapSettings, { output: opts.output, filter: opts.filter, json: opts.json });
+        await runVideoWarp(video, map, mapSettings, { output: opts.output, filter: opts.filter, json: opts.json, codec: opts.codec, crf: opts.crf, preset: opts.preset });
         return;
       }
+      for (const o of ['codec', 'crf', 'preset'] as const) if (opts[o] !== undefined) throw new UserError(`--${o}: only for a video input`);
       if (inputs.length === 0) throw new UserError('warp: give input frames (files, folders or a sequence pattern), or --raw-in');
       if (!opts.output) throw new UserError('warp: give an output folder with -o');
       await warpFrames(map, mapSettings, inputs, { ...opts, output: opts.output });

@@ -39,7 +39,7 @@ export class StderrTail {
   /** The child's first non-empty line without ffmpeg's "[muxer @ 0x…]" prefix: the cause, for a one-line error. */
   get firstLine(): string {
     const line = this.text.split('\n').map((l) => l.trim()).find(Boolean) ?? '';
-    return line.replace(/^\[[^\]]* @ 0x[0-9a-f]+\]\s*/, '');
+    return line.replace(/^(\[[^\]]* @ 0x[0-9a-f]+\]\s*)+/, '');
   }
 
   /** The child's last non-empty line. */

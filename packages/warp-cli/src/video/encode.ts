@@ -86,6 +86,8 @@ export function planEncode(output: string, o: VideoEncodeOptions, colour: VideoC
   const takesCrf = codec === 'h264' || codec === 'hevc' || codec === 'vp9';
   if (o.crf !== undefined && !takesCrf) throw new UserError(`--crf: ${codec} has no CRF (it applies to h264, hevc and vp9)`);
   if (o.preset !== undefined && codec !== 'h264' && codec !== 'hevc') throw new UserError(`--preset: ${codec} has no presets (they apply to h264 and hevc)`);
+  const crfMax = codec === 'vp9' ? 63 : 51; // x264 and x265 take 0-51, libvpx-vp9 0-63 (their documentation)
+  if (o.crf !== undefined && !(o.crf >= 0 && o.crf <= crfMax)) throw new UserError(`--crf: ${codec} takes 0 to ${crfMax}, got ${o.crf}`);
   if (o.preset !== undefined && !X26X_PRESETS.includes(o.preset)) throw new UserError(`--preset: expected one of ${X26X_PRESETS.join(', ')}, got "${o.preset}"`);
   const crf = String(o.crf ?? (codec === 'vp9' ? VIDEO_ENCODE_DEFAULTS.vp9Crf : VIDEO_ENCODE_DEFAULTS.crf));
   const preset = o.preset ?? VIDEO_ENCODE_DEFAULTS.preset;
@@ -95,7 +97,7 @@ export function planEncode(output: string, o: VideoEncodeOptions, colour: VideoC
   if (codec === 'ffv1') {
     // lossless and RGB: the samples go in as they are, no matrix, no range squeeze
     args.push('-c:v', 'ffv1', '-level', '3', '-pix_fmt', deep ? 'rgb48le' : 'bgr0');
-    args.push('-color_primaries', primaries, '-color_trc', transfer, '-colorspace', 'gbr', '-color_range', 'pc');
+    args.push('-color_primaries', primaries, '-color_trc', transfer, '-colorspace', 'rgb', '-color_range', 'pc');
     return { muxer: container.muxer, codec, args };
   }
   const space = colour.space && colour.space in SCALE_MATRIX ? colour.space : 'bt709';

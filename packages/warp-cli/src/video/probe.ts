@@ -122,7 +122,7 @@ async function probeJson(tools: VideoTools, path: string): Promise<ProbeOutput |
  * The first video stream's timestamps, sorted (decode order is not presentation order): the frame
  * count, the first frame's time and whether the frames sit on a constant-rate grid.
  */
-async function scanFrames(tools: VideoTools, path: string, index: number): Promise<number[]> {
+async function scanFrames(tools: VideoTools, path: string, index: number): Promise<{ ticks: number[]; error: string }> {
   const r = await runToEnd(tools.ffprobe, ['-v', 'error', '-select_streams', String(index), '-show_entries', 'packet=pts,dts', '-of', 'csv=p=0', '--', path]);
   if (r.code !== 0) throw new UserError(`${path}: cannot read the video's packets: ${r.stderr.trim().split('\n').pop() ?? ''}`);
   const ts: number[] = [];
@@ -132,7 +132,8 @@ async function scanFrames(tools: VideoTools, path: string, index: number): Promi
     const t = Number(pts !== 'N/A' && pts !== '' ? pts : dts);
     ts.push(Number.isFinite(t) ? t : NaN);
   }
-  return ts.sort((a, b) => a - b);
+  const error = r.stderr.split('\n').map((l) => l.trim()).find(Boolean) ?? '';
+  return { ticks: ts.sort((a, b) => a - b), error: error.replace(/^(\[[^\]]* @ 0x[0-9a-f]+\]\s*)+/, '') };
 }
 
 /**
@@ -163,12 +164,14 @@ export async function probeVideo(tools: VideoTools, path: string): Promise<Video
   const rate = parseRational(v.r_frame_rate) ?? parseRational(v.avg_frame_rate);
   if (!rate) throw new UserError(`${path}: the video stream gives no frame rate`);
   const timeBase = parseRational(v.time_base) ?? { num: 1, den: 90000 };
-  const ticks = await scanFrames(tools, path, v.index);
+  const { ticks, error } = await scanFrames(tools, path, v.index);
   if (ticks.length === 0) throw new UserError(`${path}: the video stream holds no frames`);
   if (ticks.some(Number.isNaN)) throw new UserError(`${path}: some frames carry no timestamp; remux it first (ffmpeg -i IN -c copy OUT.mkv)`);
   const off = firstOffGrid(ticks, rate, timeBase);
   if (off >= 0) {
     const at = (ticks[off] * timeBase.num) / timeBase.den;
+    // frames missing from a file ffprobe finds damaged: say so, not "variable frame rate"
+    if (error) throw new UserError(`${path}: damaged stream from frame ${off + 1} on (frames missing before ${at.toFixed(3)} s): ${error}; nothing was written`);
     throw new UserError(
       `${path}: variable frame rate (frame ${off + 1} at ${at.toFixed(3)} s is off the ${formatRational(rate)} fps grid); ` +
         `skyfold keeps frames one for one at a constant rate: convert it first (ffmpeg -i IN -fps_mode cfr -r ${formatRational(rate)} OUT)`,

@@ -13,6 +13,7 @@ import { UserError } from '../errors.js';
 import { runContext, setExitCode, writeErr } from '../io/run-context.js';
 import type { MapSettings, MapSource } from '../warp/map-source.js';
 import { Progress } from '../warp/progress.js';
+import { stopOnSignals } from '../warp/stop-signal.js';
 import { warn } from '../messages.js';
 import { planCarry } from './carry.js';
 import { StderrTail } from './child.js';
@@ -75,6 +76,11 @@ function stop(r: Running | undefined): void {
 
 class Stopped extends Error {}
 
+/** The decoder reported an error while about `frames` frames had come through (it reads a little ahead). */
+function damaged(info: VideoInfo, frames: number, line: string): UserError {
+  return new UserError(`${info.path}: damaged stream from about frame ${frames + 1} of ${info.frameCount} on: ${line}; nothing was written`);
+}
+
 /**
  * Warps `info`'s video through `source`'s map into `opts.output`. Throws UserError when any frame
  * cannot be made; undefined when a signal stopped the run (exit code 130, nothing written).
@@ -135,11 +141,8 @@ export async function warpVideo(tools: VideoTools, source: MapSource, mapSetting
   const stderr = runContext().stderr;
   const progress = new Progress(info.frameCount, stderr, opts.progress && Boolean(stderr.isTTY));
   // a signal ends the children and the run; nothing is left under the output's name
-  let stopping = false;
-  let onSignal: () => void = () => {};
-  const stopped = new Promise<symbol>((resolve) => (onSignal = () => ((stopping = true), resolve(Symbol('stopped')))));
-  process.once('SIGINT', onSignal);
-  process.once('SIGTERM', onSignal);
+  const signal = stopOnSignals();
+  const stopped = signal.stopped.then(() => Symbol('stopped'));
   try {
     decoder = start(tools.ffmpeg, decodeArgs(info, pixFmt), 'ignore');
     encoder = start(tools.ffmpeg, encodeArgs, 'pipe');
@@ -152,18 +155,21 @@ export async function warpVideo(tools: VideoTools, source: MapSource, mapSetting
     for (;;) {
       const more = await Promise.race([reader.next(inBuf).catch((e: unknown) => (e instanceof TruncatedFrame ? false : Promise.reject(e))), encoderGone, stopped]);
       if (more !== true) break;
+      // ffmpeg conceals a damaged packet and carries on; any error it reports fails the run instead
+      if (decoder.stderr.text) throw damaged(info, frames, decoder.stderr.firstLine);
       remap(src, map, { filter: opts.filter, out });
       const wrote = await Promise.race([writeFlushed(sink, outBuf).catch(() => gone), encoderGone, stopped]);
-      if (wrote === gone || stopping) break;
+      if (wrote === gone || signal.stopping) break;
       frames++;
       progress.tick(String(frames), true);
     }
-    if (stopping) throw new Stopped();
+    if (signal.stopping) throw new Stopped();
     sink.end();
     if (encoder.child.exitCode !== null || encoder.child.signalCode !== null) stop(decoder);
     const [dcode, ecode] = await Promise.all([decoder.exited, encoder.exited]);
     progress.finish();
     if (ecode !== 0) throw new UserError(`${opts.output}: ffmpeg could not write the video: ${encoder.stderr.firstLine || `exit ${ecode}`}`);
+    if (decoder.stderr.text && dcode === 0) throw damaged(info, frames, decoder.stderr.firstLine);
     if (dcode !== 0) {
       throw new UserError(`${info.path}: decoding failed at frame ${frames + 1} of ${info.frameCount}: ${decoder.stderr.firstLine || `exit ${dcode}`}`);
     }
@@ -183,8 +189,7 @@ export async function warpVideo(tools: VideoTools, source: MapSource, mapSetting
     setExitCode(130);
     return undefined;
   } finally {
-    process.removeListener('SIGINT', onSignal);
-    process.removeListener('SIGTERM', onSignal);
+    signal.dispose();
   }
   return {
     done: frames,
