@@ -35,6 +35,8 @@ function testMesh(): WarpMesh {
 }
 
 const idx = (c: number, r: number): number => r * COLS + c;
+/** The test mesh's (u, v) at a continuous grid position (c, r): it is linear in both. */
+const linearUv = (c: number, r: number): [number, number] => [(c / (COLS - 1)) * 0.9 + 0.03 + 0.01 * r, 0.05 + 0.4 * r + 0.005 * c];
 
 function expectSameGrid(got: WarpMesh, want: WarpMesh, tol: number, fields: Array<'u' | 'v' | 'brightness' | 'mask'> = ['u', 'v', 'brightness', 'mask']): void {
   expect([got.cols, got.rows]).toEqual([want.cols, want.rows]);
@@ -264,10 +266,17 @@ describe('mpcdi', () => {
     const header = 'PF\n5 3\n-1.0\n';
     expect(strFromU8(pfm.subarray(0, header.length))).toBe(header);
     const body = new DataView(pfm.buffer, pfm.byteOffset + header.length);
-    // MPCDI 2.0 (VESA) text per DESIGN.md, and SGCT's reader: the warp file's first row is the TOP of the region — unlike netpbm's PFM.
-    expect([body.getFloat32(0, true), body.getFloat32(4, true), body.getFloat32(8, true)]).toEqual([mesh.u[0], mesh.v[0], 0]);
-    const last = idx(4, 2);
-    expect([body.getFloat32(14 * 12, true), body.getFloat32(14 * 12 + 4, true)]).toEqual([mesh.u[last], mesh.v[last]]);
+    // MPCDI 2.0 (VESA) §3.6 per DESIGN.md: a fill layout — sample (i, j) of 5 × 3 stands at
+    // ((i + 0.5)/5, (j + 0.5)/3) of the region — and the first row is the TOP of the region (§3.6.1),
+    // unlike netpbm's PFM. The test mesh's u and v are linear in (c, r), so resampling it is exact.
+    for (let j = 0; j < ROWS; j++)
+      for (let i = 0; i < COLS; i++) {
+        const [u, v] = linearUv(((i + 0.5) * (COLS - 1)) / COLS, ((j + 0.5) * (ROWS - 1)) / ROWS);
+        const at = (j * COLS + i) * 12;
+        expect(Math.abs(body.getFloat32(at, true) - u), `u of sample ${i}, ${j}`).toBeLessThan(1e-6);
+        expect(Math.abs(body.getFloat32(at + 4, true) - v), `v of sample ${i}, ${j}`).toBeLessThan(1e-6);
+        expect(body.getFloat32(at + 8, true)).toBe(0); // error estimate: none given
+      }
 
     const png = files['alpha-projector.png'];
     const meta = await sharp(png).metadata();
@@ -300,11 +309,34 @@ describe('mpcdi', () => {
     expect(back.xml).toContain('<bitDepth>16</bitDepth>');
     expect(back.warpPath).toBe('warp-p_1.pfm');
     expect((await sharp(unzipSync(bytes)[back.alphaPath]).metadata()).depth).toBe('ushort');
-    expectSameGrid(back.mesh, mesh, 0, ['u', 'v']);
+    // the warp as stored, and the corner-to-corner mesh it implies: 6 × 4 corners of the 5 × 3 samples
+    expect([back.warp.cols, back.warp.rows]).toEqual([COLS, ROWS]);
+    expect([back.mesh.cols, back.mesh.rows]).toEqual([COLS + 1, ROWS + 1]);
+    for (let r = 0; r <= ROWS; r++)
+      for (let c = 0; c <= COLS; c++) {
+        const [u, v] = linearUv((c * (COLS - 1)) / COLS, (r * (ROWS - 1)) / ROWS);
+        expect(Math.abs(back.mesh.u[r * (COLS + 1) + c] - u), `u at corner ${c}, ${r}`).toBeLessThan(1e-6);
+        expect(Math.abs(back.mesh.v[r * (COLS + 1) + c] - v), `v at corner ${c}, ${r}`).toBeLessThan(1e-6);
+      }
     expect([back.mesh.width, back.mesh.height]).toEqual([40, 20]);
     // Top-left vertex: alpha at pixel (0, 0) ≈ brightness there (all lit around it).
     expect(back.mesh.brightness[0]).toBeCloseTo(mesh.brightness[0], 1);
     await expect(readMpcdi(new Uint8Array([1, 2, 3]))).rejects.toThrow(/MPCDI package/);
+  });
+
+  it('writes no data (NaN, error 1) where a cell has no lit vertex, and reads corners next to it from their neighbours', async () => {
+    const mesh = testMesh();
+    // the bottom-right cell's four vertices unlit
+    for (const [c, r] of [[3, 1], [4, 1], [3, 2], [4, 2]]) mesh.mask[idx(c, r)] = 0;
+    const files = unzipSync(await writeMpcdi(mesh, { date }));
+    const pfm = decodePfm(files['warp-projector.pfm'], { rowOrder: 'top-down' });
+    // sample (4, 2) stands at (4.5/5, 2.5/3) of the frame: grid position (3.6, 1.67), inside that cell
+    const k = 3 * idx(4, 2);
+    expect(Number.isNaN(pfm.data[k]) && Number.isNaN(pfm.data[k + 1])).toBe(true);
+    expect(pfm.data[k + 2]).toBe(1);
+    expect(Number.isFinite(pfm.data[3 * idx(0, 0)])).toBe(true);
+    const back = await readMpcdi(await writeMpcdi(mesh, { date }));
+    for (const x of [...back.mesh.u, ...back.mesh.v]) expect(Number.isFinite(x)).toBe(true);
   });
 });
 
@@ -370,6 +402,15 @@ describe('format front door', () => {
     const mesh = testMesh();
     for (const format of MESH_FORMATS) {
       const back = await decodeMesh(await encodeMesh(mesh, format), format);
+      if (format === 'mpcdi') {
+        // MPCDI's own fill layout comes back as the corners of its samples: 6 × 4, the same linear (u, v)
+        expect([back.cols, back.rows]).toEqual([COLS + 1, ROWS + 1]);
+        for (let k = 0; k < back.u.length; k++) {
+          const [u, v] = linearUv(((k % (COLS + 1)) * (COLS - 1)) / COLS, (Math.floor(k / (COLS + 1)) * (ROWS - 1)) / ROWS);
+          expect(Math.abs(back.u[k] - u) + Math.abs(back.v[k] - v)).toBeLessThan(2e-6);
+        }
+        continue;
+      }
       const tol = format === 'png' ? 1e-5 : 1e-6;
       expectSameGrid(back, mesh, tol, ['u', 'v']);
     }

@@ -11,30 +11,34 @@
  *   geometryWarpFile path + interpolation "linear"), the BSD-licensed MPCDI reference library
  *   (element names, alphaMap children, archive entry "mpcdi.xml", region x/y/xsize/ysize), and a
  *   published MPCDI 2.0 example file (xResolution casing on region, alphaMap children).
- * - Warp PFM rows: the first row is the TOP of the region — the MPCDI text's order as DESIGN.md records
- *   it, and what SGCT's reader states ("raster-scan order ... starts at upper-left"). This differs from
- *   netpbm's PFM definition (rows bottom to top), so this file encodes with rowOrder 'top-down'.
- * - 2d profile warp values: per grid point, the normalized content coordinate that the projector shows
- *   there; the third channel is unused in 2d (written 0; the public 2d readers seen ignore it).
- *   Here the content is the fisheye dome master, so the values are the mesh's (u, v), u right, v down.
+ * - The warp grid's layout, VESA MPCDI 2.0 §3.6 as DESIGN.md "The warp mesh and its files" records it:
+ *   a "fill layout" — the top left of the first sample is the top left of the region, the bottom right
+ *   of the last sample its bottom right — so sample (i, j) of N × M stands at ((i + 0.5)/N,
+ *   (j + 0.5)/M) of the region, where a GPU sampling the warp as a texture takes it whole (the
+ *   reference player PyMPCDI samples it so). Not skyfold's corner-to-corner mesh: the bake traces the
+ *   samples at those positions (or, without the rig, the mesh is resampled there).
+ * - Warp PFM rows: the first row is the TOP of the region (§3.6.1), and what SGCT's reader states
+ *   ("raster-scan order ... starts at upper-left"). This differs from netpbm's PFM definition (rows
+ *   bottom to top), so this file encodes with rowOrder 'top-down'.
+ * - Warp values: absolute normalized source coordinates, 0 to 1 (§3.6.2) — here the fisheye dome
+ *   master's (u, v), u right, v down; the third channel an error estimate, written 0 (none given);
+ *   samples with no data (the light misses the mirror) are NaN with error 1.
  *
  * Not confirmed from the standard text (public readers disagree or are silent):
  * - that the content coordinate's y axis points down (origin top-left) as ours does;
- * - whether grid points span the region corner to corner (this writer: point (c, r) sits at
- *   c/(cols−1), r/(rows−1) of the region, as skyfold's mesh does) or sit at cell centres;
  * - the `geometry` level value for 2d (written "1");
  * - whether 2d files also need `geometricUnit`/`originOf3DData` (omitted: they describe 3D data);
  * - the exact meaning of `gammaEmbedded`: written 1.0 with alpha values in linear light, i.e. the
  *   alpha value is the linear-light factor the pixel is multiplied by (brightness·mask);
- * - how unlit points should be marked in the warp file: they keep their finite (u, v); the alpha map is
- *   0 there (some readers treat NaN or (0, 0, 0) as "no data").
+ * - samples that land beyond the content's field of view keep their (u, v) (there is data there); the
+ *   alpha map is 0 at them.
  * The MPCDI reference library's own PFM I/O writes rows bottom to top relative to its memory layout
  * (its in-memory origin may be at the bottom); we follow the text's top-down order. That library
  * (MPCDI 1.0 era) also spells the resolution attributes "Xresolution"; 2.0 files use "xResolution".
  */
 import { strToU8, strFromU8, unzipSync, zipSync } from 'fflate';
 import sharp from 'sharp';
-import type { PixelFields, WarpMesh } from '@skyfold/warp-core';
+import { fillLayoutFromMesh, type FillLayoutGrid, type PixelFields, type WarpMesh } from '@skyfold/warp-core';
 import { decodePfm, encodePfm } from './pfm.js';
 import { encodePng } from '../io/image-codec.js';
 
@@ -47,11 +51,13 @@ export interface MpcdiOptions {
   alphaBitDepth?: 8 | 16;
   /** Timestamp for the `date` attribute and the ZIP entries (default now). */
   date?: Date;
+  /** The warp grid in the fill layout, traced from the rig; resampled from the mesh when absent. */
+  warp?: FillLayoutGrid;
   /** The exact fields at every projector pixel centre: the alpha map is then brightness·mask per pixel, not interpolated from the grid. */
   pixels?: PixelFields;
 }
 
-export const MPCDI_DEFAULTS: Required<Omit<MpcdiOptions, 'date' | 'pixels'>> = { bufferId: 'skyfold', regionId: 'projector', alphaBitDepth: 8 };
+export const MPCDI_DEFAULTS: Required<Omit<MpcdiOptions, 'date' | 'pixels' | 'warp'>> = { bufferId: 'skyfold', regionId: 'projector', alphaBitDepth: 8 };
 
 export async function writeMpcdi(mesh: WarpMesh, options: MpcdiOptions = {}): Promise<Uint8Array> {
   const opts = { ...MPCDI_DEFAULTS, ...options };
@@ -62,21 +68,17 @@ export async function writeMpcdi(mesh: WarpMesh, options: MpcdiOptions = {}): Pr
   const warpPath = `warp-${safeName(opts.regionId)}.pfm`;
   const alphaPath = `alpha-${safeName(opts.regionId)}.png`;
 
-  const n = mesh.cols * mesh.rows;
-  const warp = new Float32Array(n * 3);
-  for (let i = 0; i < n; i++) {
-    warp[i * 3] = mesh.u[i];
-    warp[i * 3 + 1] = mesh.v[i];
-  }
-  // MPCDI 2.0 (VESA): first row of the warp file = top of the region, unlike netpbm.
-  const warpPfm = encodePfm({ width: mesh.cols, height: mesh.rows, channels: 3, data: warp }, { rowOrder: 'top-down' });
+  const grid = options.warp ?? fillLayoutFromMesh(mesh);
+  if (grid.cols !== mesh.cols || grid.rows !== mesh.rows) throw new Error(`Expected a ${mesh.cols}×${mesh.rows} warp grid but received ${grid.cols}×${grid.rows}`);
+  // MPCDI 2.0 (VESA) §3.6.1: first row of the warp file = top of the region, unlike netpbm.
+  const warpPfm = encodePfm({ width: grid.cols, height: grid.rows, channels: 3, data: grid.data }, { rowOrder: 'top-down' });
   const alphaPng = options.pixels ? await encodeExactAlphaMap(options.pixels, xRes, yRes, opts.alphaBitDepth) : await encodeAlphaMap(mesh, xRes, yRes, opts.alphaBitDepth);
 
   const stamp = date.toISOString().slice(0, 19).replace('T', ' ');
   const xml = [
     '<?xml version="1.0" encoding="utf-8"?>',
     `<MPCDI profile="2d" geometry="1" version="2.0" date="${stamp}">`,
-    '  <!-- written by skyfold: warp = fisheye (dome master) u, v per grid point, top row first; alpha = brightness*mask, linear light -->',
+    '  <!-- written by skyfold: warp = fisheye (dome master) u, v per sample, fill layout (sample i of N at (i + 0.5)/N), top row first, NaN = no data; alpha = brightness*mask, linear light -->',
     '  <display>',
     `    <buffer id="${xmlEscape(opts.bufferId)}" xResolution="${xRes}" yResolution="${yRes}">`,
     `      <region id="${xmlEscape(opts.regionId)}" xResolution="${xRes}" yResolution="${yRes}" x="0" y="0" xsize="1" ysize="1"/>`,
@@ -150,8 +152,15 @@ async function encodeExactAlphaMap(f: PixelFields, width: number, height: number
 }
 
 export interface MpcdiContents {
-  /** The warp as a mesh: u, v exact; brightness = alpha at the pixel nearest each grid point; mask = 1 where that alpha > 0. */
+  /**
+   * The warp as a corner-to-corner mesh of (N + 1) × (M + 1) vertices at the samples' corners: u, v
+   * interpolated bilinearly between the four samples around each corner (extrapolated linearly at the
+   * border; the nearest sample with data where some have none); brightness = alpha at the pixel
+   * nearest the corner; mask = 1 where that alpha > 0.
+   */
   mesh: WarpMesh;
+  /** The warp grid as stored, in the fill layout. */
+  warp: FillLayoutGrid;
   xml: string;
   profile: string;
   warpPath: string;
@@ -194,23 +203,50 @@ export async function readMpcdi(bytes: Uint8Array): Promise<MpcdiContents> {
   const scale = wide ? 65535 : 255;
   const alpha = { width: info.width, height: info.height, data: Float32Array.from(samples, (s) => s / scale) };
 
-  const cols = pfm.width;
-  const rows = pfm.height;
-  const n = cols * rows;
-  const mesh: WarpMesh = { cols, rows, width: xRes, height: yRes, u: new Float32Array(n), v: new Float32Array(n), brightness: new Float32Array(n), mask: new Float32Array(n), meta: {} };
+  const warp: FillLayoutGrid = { cols: pfm.width, rows: pfm.height, data: pfm.data };
+  const mesh = cornerMesh(warp, xRes, yRes, alpha);
+  return { mesh, warp, xml, profile, warpPath, alphaPath, alpha };
+}
+
+/** The corner-to-corner mesh a fill-layout warp implies (see {@link MpcdiContents.mesh}). */
+function cornerMesh(warp: FillLayoutGrid, xRes: number, yRes: number, alpha: { width: number; height: number; data: Float32Array }): WarpMesh {
+  const { cols: N, rows: M, data } = warp;
+  if (N < 2 || M < 2) throw new Error(`Expected a warp grid of at least 2×2 but received ${N}×${M}`);
+  const cols = N + 1;
+  const rows = M + 1;
+  const mesh: WarpMesh = { cols, rows, width: xRes, height: yRes, u: new Float32Array(cols * rows), v: new Float32Array(cols * rows), brightness: new Float32Array(cols * rows), mask: new Float32Array(cols * rows), meta: {} };
+  const at = (i: number, j: number, ch: number) => data[3 * (j * N + i) + ch];
   for (let r = 0; r < rows; r++) {
+    // corner r lies at texel coordinate r − 0.5 (sample j at j); fy outside [0, 1] extrapolates at the border
+    const j0 = Math.min(M - 2, Math.max(0, r - 1));
+    const fy = r - 0.5 - j0;
     for (let c = 0; c < cols; c++) {
-      const i = r * cols + c;
-      mesh.u[i] = pfm.data[i * 3];
-      mesh.v[i] = pfm.data[i * 3 + 1];
-      const px = Math.min(alpha.width - 1, Math.floor((c / (cols - 1)) * alpha.width));
-      const py = Math.min(alpha.height - 1, Math.floor((r / (rows - 1)) * alpha.height));
+      const i0 = Math.min(N - 2, Math.max(0, c - 1));
+      const fx = c - 0.5 - i0;
+      const k = r * cols + c;
+      for (let ch = 0; ch < 2; ch++) {
+        let x = (1 - fy) * ((1 - fx) * at(i0, j0, ch) + fx * at(i0 + 1, j0, ch)) + fy * ((1 - fx) * at(i0, j0 + 1, ch) + fx * at(i0 + 1, j0 + 1, ch));
+        if (Number.isNaN(x)) {
+          // the first of the (up to four) samples touching the corner that has data, else the frame's centre
+          for (const [ii, jj] of [[c - 1, r - 1], [c, r - 1], [c - 1, r], [c, r]]) {
+            const v = at(Math.min(N - 1, Math.max(0, ii)), Math.min(M - 1, Math.max(0, jj)), ch);
+            if (!Number.isNaN(v)) {
+              x = v;
+              break;
+            }
+          }
+          if (Number.isNaN(x)) x = 0.5;
+        }
+        (ch === 0 ? mesh.u : mesh.v)[k] = x;
+      }
+      const px = Math.min(alpha.width - 1, Math.floor((c / N) * alpha.width));
+      const py = Math.min(alpha.height - 1, Math.floor((r / M) * alpha.height));
       const a = alpha.data[py * alpha.width + px];
-      mesh.brightness[i] = a;
-      mesh.mask[i] = a > 0 ? 1 : 0;
+      mesh.brightness[k] = a;
+      mesh.mask[k] = a > 0 ? 1 : 0;
     }
   }
-  return { mesh, xml, profile, warpPath, alphaPath, alpha };
+  return mesh;
 }
 
 function xmlEscape(s: string): string {
