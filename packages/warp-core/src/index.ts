@@ -6,8 +6,9 @@
 export { DEG, RAD, angleBetween, azAltFromDirection, directionFromAzAlt, wrapDegrees, type ReadonlyVec3, type Vec3 } from './math.js';
 export { LENGTH_UNITS, formatLength, fromMetres, isLengthUnit, parseLengthString, toMetres, type LengthUnit } from './units.js';
 export { linearToSrgb, srgbToLinear } from './srgb.js';
+export { wordNotice, type Notice } from './notice.js';
 
-export { MAX_PROJECTOR_SIDE, RigError, validateRigGeometry, type ContentModel, type DomeModel, type MirrorModel, type ProjectorBody, type ProjectorModel, type Rig } from './rig/model.js';
+export { MAX_PROJECTOR_SIDE, OptionError, RigError, validateRigGeometry, type ContentModel, type DomeModel, type MirrorModel, type ProjectorBody, type ProjectorModel, type Rig } from './rig/model.js';
 export { rigFromDocument, rigToDocument, shortQuote, type RigDocumentOptions } from './rig/document.js';
 export { cloneRig } from './rig/clone.js';
 export { rigWarnings } from './rig/warnings.js';

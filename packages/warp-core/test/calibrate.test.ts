@@ -401,10 +401,12 @@ describe('fitRig on synthetic ground truth', () => {
     const centreError = (rig: Rig) => Math.hypot(...rig.mirror.center.map((x, i) => x - truth.mirror.center[i]));
     expect(centreError(robust.rig)).toBeLessThan(0.5 * centreError(plain.rig));
     expect(plain.worst?.field).toBe('measurements[1]');
-    expect(plain.warnings.some((w) => w.startsWith('measurements[1] (1) is') && w.includes('try --robust'))).toBe(true);
+    // the core names the option, not a flag: the CLI words it as --robust
+    expect(plain.warnings.some((w) => w.rule === 'fit.outlier' && w.parameter === 'measurements[1]' && w.text.startsWith('measurements[1] (1) is') && w.text.includes('try {option:robust}'))).toBe(true);
+    expect([...plain.warnings, ...robust.warnings].every((w) => !w.text.includes('--'))).toBe(true);
     const bad = robust.residuals.find((x) => x.field === 'measurements[1]')!;
     expect(bad.weight).toBeLessThan(0.2);
-    expect(robust.warnings.some((w) => w.startsWith('measurements[1] (1) disagrees with the rest'))).toBe(true);
+    expect(robust.warnings.some((w) => w.rule === 'fit.down-weighted' && w.text.startsWith('measurements[1] (1) disagrees with the rest'))).toBe(true);
     expect(robust.residuals.filter((x) => x.weight < 0.5).map((x) => x.field)).toEqual(['measurements[1]']);
   });
 
@@ -415,8 +417,8 @@ describe('fitRig on synthetic ground truth', () => {
     start.mirror.center = [0.25, -1.7, 0.3]; // a quarter metre out
     const set: MeasurementSet = { units: 'm', measurements: tapes(truth, r), observations: observe(truth, r, 10), free: FREE };
     const res = fitRig(start, set);
-    expect(res.notes.some((n) => n.startsWith('mirror.pole placed by trilateration from 3 distances (rim@0, rim@90, rim@270'))).toBe(false);
-    expect(res.notes.some((n) => n.startsWith('mirror.pole placed by trilateration from 4 distances (rim@0, rim@90, rim@270, zenith)'))).toBe(true);
+    expect(res.notes.some((n) => n.text.startsWith('mirror.pole placed by trilateration from 3 distances (rim@0, rim@90, rim@270'))).toBe(false);
+    expect(res.notes.some((n) => n.text.startsWith('mirror.pole placed by trilateration from 4 distances (rim@0, rim@90, rim@270, zenith)'))).toBe(true);
     expect(percentile(landingErrors(truth, res.rig), 0.95)).toBeLessThan(0.6);
   });
 
@@ -428,7 +430,7 @@ describe('fitRig on synthetic ground truth', () => {
     const observations = observe(truth, r, 12);
     const set: MeasurementSet = { units: 'm', measurements: tapes(truth, r), observations, free: FREE };
     const res = fitRig(start, set);
-    expect(res.warnings.some((w) => /misses the mirror in the starting rig/.test(w))).toBe(true);
+    expect(res.warnings.some((w) => w.rule === 'fit.start-misses-mirror' && /misses the mirror in the starting rig/.test(w.text))).toBe(true);
     expect(res.residuals.every((x) => x.kind === 'distance' || x.onMirror)).toBe(true);
     expect(res.after.rms).toBeLessThan(2);
   });
@@ -466,7 +468,7 @@ describe('fitRig on degenerate sets', () => {
     expect(d, JSON.stringify(res.degeneracies)).toBeDefined();
     expect(d!.quantities).toEqual(expect.arrayContaining(['projector.lookAt', 'projector.lensShift']));
     expect(d!.components).toEqual(expect.arrayContaining(['projector.lookAt (aim elevation)', 'projector.lensShift[1]']));
-    expect(res.warnings).toContain(d!.message);
+    expect(res.warnings.map((w) => w.text)).toContain(d!.message);
     expect(d!.message).toMatch(/^projector\.(lookAt|lensShift) and projector\.(lookAt|lensShift) cannot be told apart with these measurements and points/);
     const shift = res.parameters.find((p) => p.name === 'projector.lensShift')!;
     expect(shift.stderr[1]).toBeNull();

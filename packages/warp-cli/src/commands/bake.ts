@@ -1,6 +1,6 @@
 /** `skyfold bake`: the warp mesh, with its measured accuracy, in open formats. */
 import { Option, type Command } from 'commander';
-import { BAKE_DEFAULTS, bakeMesh, fillLayoutFromRig, pixelFields, rigToDocument, type BakeOptions, type BakeResult } from '@skyfold/warp-core';
+import { BAKE_DEFAULTS, bakeMesh, fillLayoutFromRig, pixelFields, rigToDocument, type BakeOptions, type BakeResult, type LengthUnit } from '@skyfold/warp-core';
 import { readRig } from '../io/document-file.js';
 import { writeOutputFile } from '../io/output-file.js';
 import { UserError } from '../errors.js';
@@ -9,6 +9,7 @@ import { printJson } from '../format.js';
 import { collect, parseNumberIn, parsePositiveInt, parseSize } from '../options.js';
 import { VERSION } from '../version.js';
 import { writeOut } from '../io/run-context.js';
+import { wordNotice } from '../messages.js';
 
 const parseGrid = parseSize({ min: 2, what: 'COLSxROWS with at least 2 each (e.g. 321x201)' });
 
@@ -26,7 +27,7 @@ export type AlphaResolution = 'grid' | 'full';
 export const ALPHA_RESOLUTIONS: readonly AlphaResolution[] = ['grid', 'full'];
 
 /** The bake summary as printed by --json (stable keys). */
-export function bakeSummary(r: BakeResult, files: string[]): Record<string, unknown> {
+export function bakeSummary(r: BakeResult, files: string[], units: LengthUnit): Record<string, unknown> {
   const a = r.accuracy;
   return {
     grid: [r.mesh.cols, r.mesh.rows],
@@ -45,7 +46,7 @@ export function bakeSummary(r: BakeResult, files: string[]): Record<string, unkn
     worstAt: a.worstAt,
     triangles: a.triangles,
     edge: r.edge,
-    notes: r.notes,
+    notes: r.notes.map((n) => wordNotice(n, units)),
   };
 }
 
@@ -97,7 +98,7 @@ export function registerBake(program: Command): void {
       for (const t of targets) {
         writeOutputFile(t.path, await encodeMesh(result.mesh, t.format, { pixels, mpcdi: { warp } }));
       }
-      const summary = { ...bakeSummary(result, targets.map((t) => t.path)), alphaResolution: opts.alphaResolution };
+      const summary = { ...bakeSummary(result, targets.map((t) => t.path), rig.units), alphaResolution: opts.alphaResolution };
       if (opts.json) {
         printJson(summary);
         return;
@@ -113,7 +114,7 @@ export function registerBake(program: Command): void {
         `tolerance       ${opts.tolerance} projector px; ${(a.overTolerance * 100).toFixed(2)}% of lit cells exceed it (${(a.triangles.overTolerance * 100).toFixed(2)}% as triangles)`,
         `edge            mean ${f(result.edge.mean)}, p99 ${f(result.edge.p99)}, max ${f(result.edge.max)} projector px from the exact edge (the mask's 0.5 level on the two triangles per cell, ${result.edge.samples} samples)`,
         `brightness      ${result.brightnessMin.toFixed(3)} .. ${result.brightnessMax.toFixed(3)} (strength ${opts.brightness}, floor ${opts.brightnessFloor})`,
-        ...result.notes.map((n) => `note            ${n}`),
+        ...result.notes.map((n) => `note            ${wordNotice(n, rig.units)}`),
         ...targets.map((t) => `wrote           ${t.path} (${t.format}${pixels && (t.format === 'mpcdi' || t.format === 'png') ? ', traced at every projector pixel' : ''})`),
       ];
       writeOut(lines.join('\n') + '\n');

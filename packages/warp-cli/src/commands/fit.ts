@@ -26,7 +26,7 @@ import { loadRig, readDocumentFile } from '../io/document-file.js';
 import { refuseToOverwrite, writeOutputFile } from '../io/output-file.js';
 import { UserError } from '../errors.js';
 import { fixed, printJson, table } from '../format.js';
-import { warn } from '../messages.js';
+import { warn, wordNotice } from '../messages.js';
 import { writeOut } from '../io/run-context.js';
 
 interface FitCliOptions {
@@ -138,7 +138,7 @@ export function fittedRigText(result: FitResult, rigPath: string, measurementsPa
     ` Misfit after:  ${summaryLine(result.after, units)}.`,
   ];
   if (result.worst) lines.push(` Worst item: ${result.worst.field} (${result.worst.label}), ${fixed(Math.abs(result.worst.normalized), 2)} sigma.`);
-  for (const w of result.warnings) lines.push(` Warning: ${w}.`);
+  for (const w of result.warnings) lines.push(` Warning: ${wordNotice(w, result.rig.units)}.`);
   lines.push(' Standard errors (one sigma) are beside each fitted value.');
   doc.commentBefore = lines.join('\n');
   const ru = result.rig.units;
@@ -227,19 +227,19 @@ export function registerFit(program: Command): void {
           parameters,
           worst: result.worst ? residualJson(result.worst, units) : null,
           degeneracies: result.degeneracies.map((d) => ({ quantities: d.quantities, components: d.components, severity: d.severity, inflation: Number.isFinite(d.inflation) ? d.inflation : null, where: d.where })),
-          warnings: [...rigWarnings, ...result.warnings],
-          notes: result.notes,
+          warnings: [...rigWarnings, ...result.warnings.map((w) => wordNotice(w, ru))],
+          notes: result.notes.map((n) => wordNotice(n, ru)),
           output: opts.output ?? null,
         });
         return;
       }
       rigWarnings.forEach(warn);
-      result.warnings.forEach((w) => warn(`${measurementsPath}: ${w}`));
+      result.warnings.forEach((w) => warn(`${measurementsPath}: ${wordNotice(w, ru)}`));
       const out: string[] = [];
       out.push(
         `fit: ${set.measurements.length} distances and ${set.observations.length} observations = ${result.equations} equations for ${result.unknowns} unknowns (${result.free.join(', ')})`,
       );
-      for (const n of result.notes) out.push(`note: ${n}`);
+      for (const n of result.notes) out.push(`note: ${wordNotice(n, ru)}`);
       out.push(`${result.converged ? 'converged' : 'stopped without converging'} after ${result.iterations} iterations`);
       out.push(`misfit before: ${summaryLine(result.before, units)}`);
       out.push(`misfit after:  ${summaryLine(result.after, units)}`);

@@ -10,6 +10,7 @@ import { printJson, table } from '../format.js';
 import { collect, parsePositiveInt } from '../options.js';
 import { VERSION } from '../version.js';
 import { setExitCode, writeOut } from '../io/run-context.js';
+import { wordNotice, wordRigError } from '../messages.js';
 
 interface PlanCliOptions {
   vary?: string[];
@@ -71,7 +72,7 @@ export function registerPlan(program: Command): void {
       try {
         result = planRig(rig, { vary: opts.vary ?? [...PLAN_DEFAULTS.vary], objective: opts.objective, seed: opts.seed, evaluations: opts.evaluations });
       } catch (e) {
-        if (e instanceof RigError) throw new UserError(`${e.field}: ${e.reason}`);
+        if (e instanceof RigError) throw new UserError(wordRigError(e));
         throw e;
       }
       const out = opts.output ?? defaultOutput(rigPath);
@@ -95,7 +96,7 @@ export function registerPlan(program: Command): void {
           bounds: result.bounds,
           current: { ...candidateJson(result.current), feasible: result.current.feasible, violations: result.current.violations },
           best: result.best.map(candidateJson),
-          notes: result.notes,
+          notes: result.notes.map((n) => wordNotice(n, rig.units)),
           file: wrote,
         });
         if (!best) setExitCode(1);
@@ -103,7 +104,7 @@ export function registerPlan(program: Command): void {
       }
       const lines = [planSummary(result, rig.units), ''];
       if (!result.current.feasible) lines.push(`note: the current rig breaks a bound: ${result.current.violations.join('; ')}`);
-      for (const n of result.notes) lines.push(`note: ${n}`);
+      for (const n of result.notes) lines.push(`note: ${wordNotice(n, rig.units)}`);
       lines.push(wrote ? `wrote ${wrote} (candidate #1)` : 'no placement found; nothing written');
       writeOut(lines.join('\n') + '\n');
       if (!best) setExitCode(1);

@@ -23,6 +23,7 @@ import { levenbergMarquardt, numericJacobian } from './levenberg-marquardt.js';
 import { normalEquations, symmetricEigen } from './matrix.js';
 import { FREE_QUANTITIES, pointLabel, type DistanceMeasurement, type FreeQuantity, type MeasurementSet, type Observation, type PointRef } from './measurements.js';
 import { locatePoint } from './trilaterate.js';
+import { notice, type Notice } from '../notice.js';
 
 export interface FitOptions {
   /** Huber-weight the items so one bad reading cannot drag the fit. */
@@ -74,7 +75,7 @@ export interface DistanceResidual {
   sigma: number;
   /** residual / sigma. */
   normalized: number;
-  /** Robust weight in (0, 1] (1 without --robust). */
+  /** Robust weight in (0, 1] (1 without robust reweighting). */
   weight: number;
 }
 
@@ -132,9 +133,9 @@ export interface FitResult {
   parameters: FitParameter[];
   worst: FitResidual | null;
   degeneracies: Degeneracy[];
-  warnings: string[];
+  warnings: Notice[];
   /** What was done beyond the plain solve (trilateration seeds, reweighting rounds). */
-  notes: string[];
+  notes: Notice[];
   equations: number;
   unknowns: number;
   /** s² = Σr²/(equations − unknowns): the scale applied to the covariance (1 without redundancy). */
@@ -496,7 +497,7 @@ function expandWeights(w: readonly number[], nd: number, no: number): Float64Arr
  * lens) to fixed dome points, the closed-form intersection refined by least squares places that
  * point directly. Kept only when it lowers the total misfit.
  */
-function trilaterationSeed(base: Rig, set: MeasurementSet, blocks: readonly Block[], p: Float64Array, cost: (p: Float64Array) => number, notes: string[]): Float64Array {
+function trilaterationSeed(base: Rig, set: MeasurementSet, blocks: readonly Block[], p: Float64Array, cost: (p: Float64Array) => number, notes: Notice[]): Float64Array {
   const targets: { point: 'mirror.pole' | 'projector.lens'; block: FreeQuantity }[] = [
     { point: 'mirror.pole', block: 'mirror.center' },
     { point: 'projector.lens', block: 'projector.position' },
@@ -530,7 +531,7 @@ function trilaterationSeed(base: Rig, set: MeasurementSet, blocks: readonly Bloc
     if (c < bestCost) {
       best = q;
       bestCost = c;
-      notes.push(`${t.point} placed by trilateration from ${anchors.length} distances (${pointLabelList(set, t.point)}) as the starting point`);
+      notes.push(notice('fit.trilateration-start', `${t.point} placed by trilateration from ${anchors.length} distances (${pointLabelList(set, t.point)}) as the starting point`, { parameter: t.block }));
     }
   }
   return best;
@@ -668,7 +669,7 @@ function solve(problem: FitProblem, p: Float64Array, maxIterations: number): Sol
 }
 
 /** Huber reweighting rounds after the plain solve, until the weights settle (at most 30 rounds). */
-function robustReweighting(problem: FitProblem, plain: Solution, huberK: number, maxIterations: number, notes: string[]): Solution {
+function robustReweighting(problem: FitProblem, plain: Solution, huberK: number, maxIterations: number, notes: Notice[]): Solution {
   const { distances: nd, observations: no } = problem;
   let { fit, weights, iterations, converged } = plain;
   let rounds = 0;
@@ -689,7 +690,7 @@ function robustReweighting(problem: FitProblem, plain: Solution, huberK: number,
     iterations += fit.iterations;
     converged = fit.converged;
   }
-  notes.push(`robust (Huber, k = ${huberK}): ${rounds + 1} reweighting rounds`);
+  notes.push(notice('fit.robust-rounds', `robust (Huber, k = ${huberK}): ${rounds + 1} reweighting rounds`));
   return { fit, weights, iterations, converged };
 }
 
@@ -804,25 +805,35 @@ function worstResidual(residuals: readonly FitResidual[]): FitResidual | null {
 }
 
 /** Warnings about the starting rig: observations whose pixel misses the mirror there. */
-function startWarnings(initialResiduals: readonly FitResidual[]): string[] {
-  const warnings: string[] = [];
+function startWarnings(initialResiduals: readonly FitResidual[]): Notice[] {
+  const warnings: Notice[] = [];
   for (const r of initialResiduals) {
-    if (r.kind === 'observation' && !r.onMirror) warnings.push(`${r.field}: pixel ${r.pixel.join(',')} misses the mirror in the starting rig; the fit steers it back by continuing the reflection past the mirror's edge`);
+    if (r.kind === 'observation' && !r.onMirror) {
+      const text = `${r.field}: pixel ${r.pixel.join(',')} misses the mirror in the starting rig; the fit steers it back by continuing the reflection past the mirror's edge`;
+      warnings.push(notice('fit.start-misses-mirror', text, { parameter: r.field }));
+    }
   }
   return warnings;
 }
 
 /** Warnings about the solution: items that miss, disagree or stand out; a fit with no redundancy. */
-function solutionWarnings(residuals: readonly FitResidual[], worst: FitResidual | null, robust: boolean, dof: number): string[] {
-  const warnings: string[] = [];
-  if (dof === 0) warnings.push('as many equations as unknowns: no redundancy to check the fit against; standard errors assume the stated sigmas');
+function solutionWarnings(residuals: readonly FitResidual[], worst: FitResidual | null, robust: boolean, dof: number): Notice[] {
+  const warnings: Notice[] = [];
+  if (dof === 0) warnings.push(notice('fit.no-redundancy', 'as many equations as unknowns: no redundancy to check the fit against; standard errors assume the stated sigmas'));
   for (const r of residuals) {
-    if (r.kind === 'observation' && !r.onMirror) warnings.push(`${r.field}: pixel ${r.pixel.join(',')} misses the mirror in the fitted rig: check that observation`);
+    if (r.kind === 'observation' && !r.onMirror) {
+      warnings.push(notice('fit.misses-mirror', `${r.field}: pixel ${r.pixel.join(',')} misses the mirror in the fitted rig: check that observation`, { parameter: r.field }));
+    }
   }
   if (robust) {
-    for (const r of residuals) if (r.weight < 0.5) warnings.push(`${r.field} (${r.label}) disagrees with the rest: ${Math.abs(r.normalized).toFixed(1)} sigma off, down-weighted to ${r.weight.toFixed(2)}`);
+    for (const r of residuals) {
+      if (r.weight >= 0.5) continue;
+      const text = `${r.field} (${r.label}) disagrees with the rest: ${Math.abs(r.normalized).toFixed(1)} sigma off, down-weighted to ${r.weight.toFixed(2)}`;
+      warnings.push(notice('fit.down-weighted', text, { parameter: r.field }));
+    }
   } else if (worst && Math.abs(worst.normalized) > 3 && dof > 0) {
-    warnings.push(`${worst.field} (${worst.label}) is ${Math.abs(worst.normalized).toFixed(1)} sigma off: check that reading, or try --robust`);
+    const text = `${worst.field} (${worst.label}) is ${Math.abs(worst.normalized).toFixed(1)} sigma off: check that reading, or try {option:robust}`;
+    warnings.push(notice('fit.outlier', text, { parameter: worst.field }));
   }
   return warnings;
 }
@@ -840,7 +851,7 @@ export function fitRig(rig: Rig, set: MeasurementSet, options: Partial<FitOption
   validateRigGeometry(rig);
   const problem = fitProblem(rig, set, blocks);
   const { equations: m, unknowns: n } = problem;
-  const notes: string[] = [];
+  const notes: Notice[] = [];
 
   const initialResiduals = describeResiduals(rig, set, []);
   let p: Float64Array = Float64Array.from(blocks.flatMap((b) => b.read(rig)));
@@ -862,8 +873,8 @@ export function fitRig(rig: Rig, set: MeasurementSet, options: Partial<FitOption
   const worst = worstResidual(residuals);
   const warnings = [
     ...startWarnings(initialResiduals),
-    ...(solution.converged ? [] : [`the solver stopped before converging (${fit.reason}); the result may not be the best fit`]),
-    ...rank.degeneracies.map((d) => d.message),
+    ...(solution.converged ? [] : [notice('fit.not-converged', `the solver stopped before converging (${fit.reason}); the result may not be the best fit`)]),
+    ...rank.degeneracies.map((d) => notice(`fit.${d.severity}`, d.message, { parameter: d.quantities[0] })),
     ...solutionWarnings(residuals, worst, o.robust, m - n),
   ];
 

@@ -66,7 +66,7 @@ export interface MeasurementSet {
   name?: string;
   measurements: DistanceMeasurement[];
   observations: Observation[];
-  /** Empty when the document leaves it to the caller (the CLI's --free). */
+  /** Empty when the document leaves it to the caller (its own list of free quantities). */
   free: FreeQuantity[];
 }
 

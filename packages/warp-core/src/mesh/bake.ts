@@ -9,6 +9,7 @@ import { allocGridOutput, Tracer, landsOnDome } from '../trace.js';
 import { edgeRamp, edgeSegments, angularScaleAt, litTest, measureEdgePlacement, type EdgePlacement, type LitTest } from './edge.js';
 import { brightnessFactor, contentVisible, domeAreaOnGrid, fillUnlit, quantile, referenceArea } from './field.js';
 import { createMesh, type WarpMesh } from './mesh.js';
+import { notice, type Notice } from '../notice.js';
 
 export interface BakeOptions {
   /** Vertices across and down; chosen from `tolerance` when absent. */
@@ -83,7 +84,7 @@ export interface BakeResult {
   /** The reference area A_max, m² per projector pixel. */
   areaMax: number;
   /** Plain-language remarks (e.g. where the tolerance cannot be met). */
-  notes: string[];
+  notes: Notice[];
   options: BakeOptions;
 }
 
@@ -299,19 +300,19 @@ export function bakeMesh(rig: Rig, options: Partial<BakeOptions> = {}, meta: Rec
       if (mesh.brightness[k] > bMax) bMax = mesh.brightness[k];
     }
   }
-  const notes: string[] = [];
+  const notes: Notice[] = [];
   const worstP99 = Math.max(accuracy.errorP99Projector, accuracy.triangles.errorP99Projector);
   if (worstP99 > o.tolerance) {
-    notes.push(
+    const text =
       `the tolerance of ${o.tolerance} projector pixel is not met over 99% of lit cells (p99 ${accuracy.errorP99Projector.toFixed(2)} bilinear, ${accuracy.triangles.errorP99Projector.toFixed(2)} as triangles); ` +
-        (o.grid ? 'use a finer --grid or drop --grid to let bake choose' : `the grid stopped at ${mesh.cols} vertices across`),
-    );
+      (o.grid ? 'use a finer {option:grid} or drop {option:grid} to let bake choose' : `the grid stopped at ${mesh.cols} vertices across`);
+    notes.push(notice('bake.tolerance-unmet', text));
   }
   if (accuracy.overTolerance > 0) {
-    notes.push(
+    const text =
       `${(accuracy.overTolerance * 100).toFixed(2)}% of lit cells exceed the tolerance; the worst (${fmt(accuracy.errorMaxProjector)} projector px) is at pixel ${accuracy.worstAt.map((x) => x.toFixed(0)).join(', ')}` +
-        (accuracy.worstNearEdge ? ", next to the edge of the lit area, where the light grazes the mirror's silhouette and the map's slope grows without bound" : ''),
-    );
+      (accuracy.worstNearEdge ? ", next to the edge of the lit area, where the light grazes the mirror's silhouette and the map's slope grows without bound" : '');
+    notes.push(notice('bake.cells-over-tolerance', text));
   }
   const edge = measureEdgePlacement(litOf, mesh);
   return { mesh, accuracy, edge, litFraction: lit / n, brightnessMin: lit ? bMin : 0, brightnessMax: lit ? bMax : 0, areaMax, notes, options: o };

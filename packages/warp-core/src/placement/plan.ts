@@ -7,7 +7,8 @@
  */
 import { DEG, normalize, RAD, type Vec3 } from '../math.js';
 import { cloneRig } from '../rig/clone.js';
-import { RigError, type Rig } from '../rig/model.js';
+import { OptionError, type Rig } from '../rig/model.js';
+import { notice, type Notice } from '../notice.js';
 import { roundFigure } from '../analysis/stats.js';
 import { differentialEvolution, type ScoredPoint } from './differential-evolution.js';
 import { betterPlacement, DEFAULT_CLEARANCE, evaluatePlacement, NOMINAL_BODY, type Evaluation, type PlanFigures, type PlanObjective, type ScoringSettings } from './scoring.js';
@@ -71,26 +72,28 @@ export interface PlanResult {
   vary: string[];
   /** The bounds searched, by field name. */
   bounds: Record<string, [number, number]>;
-  notes: string[];
+  notes: Notice[];
 }
 
 const AXES = ['x', 'y', 'z'] as const;
 
-/** The dimensions for the `vary` list; throws RigError naming a field it cannot vary. */
-function dimensions(rig: Rig, vary: string[], notes: string[]): Dimension[] {
+/** The dimensions for the `vary` list; throws OptionError naming a field it cannot vary. */
+function dimensions(rig: Rig, vary: string[], notes: Notice[]): Dimension[] {
   const domeRadius = rig.dome.radius;
   const mirrorRadius = rig.mirror.radius;
   const floorHeight = rig.dome.floor !== undefined ? -rig.dome.floor : -0.5 * domeRadius;
-  if (rig.dome.floor === undefined) notes.push(`dome.floor is not given: the search keeps parts above ${(-floorHeight).toFixed(2)} m below the springline`);
+  if (rig.dome.floor === undefined) {
+    notes.push(notice('plan.floor-assumed', 'dome.floor is not given: the search keeps parts above {length:depth} below the springline', { parameter: 'dome.floor', lengths: { depth: -floorHeight } }));
+  }
   const varyLookAt = vary.some((field) => field.startsWith('projector.lookAt'));
   const found: Dimension[] = [];
   const seen = new Set<string>();
   for (const field of vary) {
     const match = /^(mirror\.center|projector\.position|projector\.lookAt|mirror\.axis)(?:\.([xyz]))?$/.exec(field);
-    if (!match) throw new RigError('--vary', `cannot vary "${field}" (expected one of ${PLAN_FIELDS.join(', ')}, or one coordinate such as mirror.center.z)`);
+    if (!match) throw new OptionError('vary', `cannot vary "${field}" (expected one of ${PLAN_FIELDS.join(', ')}, or one coordinate such as mirror.center.z)`);
     const [, base, component] = match;
     if (base === 'mirror.axis') {
-      if (component) throw new RigError('--vary', 'mirror.axis is varied as a whole (its azimuth and elevation)');
+      if (component) throw new OptionError('vary', 'mirror.axis is varied as a whole (its azimuth and elevation)');
       if (seen.has('mirror.axis')) continue;
       seen.add('mirror.axis');
       // axis as azimuth and elevation in degrees; the azimuth keeps the current one as a start
@@ -122,7 +125,7 @@ function dimensions(rig: Rig, vary: string[], notes: string[]): Dimension[] {
       }
     }
   }
-  if (found.length === 0) throw new RigError('--vary', 'nothing to vary');
+  if (found.length === 0) throw new OptionError('vary', 'nothing to vary');
   // apply the mirror before the aim that is measured from it
   const isAim = (d: Dimension) => d.name.startsWith('projector.lookAt');
   return [...found.filter((d) => !isAim(d)), ...found.filter(isAim)];
@@ -175,8 +178,11 @@ function distinctBest(archive: readonly ScoredPoint<Evaluation>[], dims: readonl
 
 export function planRig(rig: Rig, options: Partial<PlanOptions> = {}): PlanResult {
   const settings: PlanOptions = { ...PLAN_DEFAULTS, ...options };
-  const notes: string[] = [];
-  if (!rig.projector.body) notes.push(`projector.body is not given: a ${NOMINAL_BODY.width * 100} × ${NOMINAL_BODY.length * 100} × ${NOMINAL_BODY.height * 100} cm body is assumed to keep the projector out of the reflected light`);
+  const notes: Notice[] = [];
+  if (!rig.projector.body) {
+    const text = 'projector.body is not given: a {length:width} × {length:length} × {length:height} body is assumed to keep the projector out of the reflected light';
+    notes.push(notice('plan.body-assumed', text, { parameter: 'projector.body', lengths: { ...NOMINAL_BODY } }));
+  }
   const dims = dimensions(rig, settings.vary, notes);
   const coarse: ScoringSettings = { objective: settings.objective, vertices: settings.vertices, depth: 2, clearance: settings.clearance, maxShadow: settings.maxShadow, minCoverage: 0 };
   const fine: ScoringSettings = { ...coarse, vertices: Math.max(settings.vertices, settings.refineVertices), depth: 3 };
@@ -200,7 +206,7 @@ export function planRig(rig: Rig, options: Partial<PlanOptions> = {}): PlanResul
     })
     .sort((a, b) => (b.figures.score ?? 0) - (a.figures.score ?? 0));
   const current = evaluatePlacement(rig, fine);
-  if (best.length === 0) notes.push('no placement within the bounds lights the content; widen the search (--vary) or check the rig');
+  if (best.length === 0) notes.push(notice('plan.nothing-lit', 'no placement within the bounds lights the content; widen the search ({option:vary}) or check the rig'));
   const bounds = Object.fromEntries(dims.map((d) => [d.name, [roundFigure(d.lo, 4)!, roundFigure(d.hi, 4)!] as [number, number]]));
   return {
     current: { rig, figures: current.figures, values: values(start), feasible: current.violation === 0, violations: current.reasons },

@@ -82,6 +82,14 @@ export class RigError extends Error {
   }
 }
 
+/** An option of a core call that cannot work; `option` is its name in the options object ("vary"). */
+export class OptionError extends RigError {
+  constructor(readonly option: string, reason: string) {
+    super(option, reason);
+    this.name = 'OptionError';
+  }
+}
+
 export interface ProjectorBasis {
   forward: Vec3;
   right: Vec3;
