@@ -3,6 +3,7 @@
  * Rig files speak degrees and the file's units; `rig-document.ts` converts at that boundary.
  */
 import { cross, DEG, dot, length, normalize, safeAcos, scale, sub, type ReadonlyVec3, type Vec3 } from '../math.js';
+import { quat, vec3 } from 'gl-matrix';
 import { formatLength, type LengthUnit } from '../units.js';
 import type { DomeMesh } from '../optics/dome-mesh.js';
 
@@ -99,34 +100,37 @@ export interface ProjectorBasis {
 /**
  * forward = normalize(lookAt − position); up = the starting up made orthogonal to forward, then turned
  * about forward by roll (right-hand rule); right = forward × up (DESIGN.md "Projector model").
+ * Built once per rig with gl-matrix (out-first, into plain number arrays: gl-matrix's own create()
+ * would give Float32Array).
  */
 export function projectorBasis(p: Pick<ProjectorModel, 'position' | 'lookAt' | 'roll' | 'up'>): ProjectorBasis {
-  const f0 = sub(p.lookAt, p.position);
-  if (length(f0) < 1e-12) throw new RigError('projector.lookAt', 'must differ from projector.position');
-  const forward = normalize(f0);
+  const forward: Vec3 = [0, 0, 0];
+  vec3.subtract(forward, p.lookAt, p.position);
+  if (vec3.length(forward) < 1e-12) throw new RigError('projector.lookAt', 'must differ from projector.position');
+  vec3.normalize(forward, forward);
   const start: ReadonlyVec3 = p.up ?? [0, 0, 1];
   // right from a cross product, then up = right × forward: orthonormal even a hair off vertical
-  const side = cross(forward, start);
-  if (length(side) < 1e-9 * Math.max(1, length(start))) {
+  const right: Vec3 = [0, 0, 0];
+  vec3.cross(right, forward, start);
+  if (vec3.length(right) < 1e-9 * Math.max(1, vec3.length(start))) {
     throw new RigError(
       p.up ? 'projector.up' : 'projector.lookAt',
       p.up ? 'must not be parallel to the optical axis' : 'the optical axis is vertical: give projector.up to say which way the picture is up',
     );
   }
-  const right0 = normalize(side);
-  const up0 = cross(right0, forward);
-  // Rodrigues' rotation of up0 about forward (up0 ⊥ forward, so the axial term vanishes).
-  const c = Math.cos(p.roll);
-  const s = Math.sin(p.roll);
-  const fxu = cross(forward, up0);
-  const up = normalize([up0[0] * c + fxu[0] * s, up0[1] * c + fxu[1] * s, up0[2] * c + fxu[2] * s]);
-  const right = cross(forward, up);
+  vec3.normalize(right, right);
+  const up: Vec3 = [0, 0, 0];
+  vec3.cross(up, right, forward);
+  // the roll: a turn of up about forward by the roll angle (right-hand rule), as a unit quaternion
+  const turn = quat.setAxisAngle([0, 0, 0, 1], forward, p.roll);
+  vec3.normalize(up, vec3.transformQuat(up, up, turn));
+  vec3.cross(right, forward, up);
   return { forward, right, up };
 }
 
 /** The mirror's pole: the cap's apex, center + radius·axis. */
 export function mirrorPole(m: MirrorModel): Vec3 {
-  return [m.center[0] + m.radius * m.axis[0], m.center[1] + m.radius * m.axis[1], m.center[2] + m.radius * m.axis[2]];
+  return vec3.scaleAndAdd([0, 0, 0], m.center, m.axis, m.radius) as Vec3;
 }
 
 /** Largest distance from the dome centre of any point of the mirror's reflective cap. */
