@@ -54,7 +54,7 @@ export function registerBake(program: Command): void {
   program
     .command('bake')
     .description('bake the warp mesh (fisheye u, v + brightness + mask per vertex) and write it in open formats')
-    .argument('<rig>', 'rig file (YAML or JSON)')
+    .argument('<rig>', 'rig file (YAML or JSON), or a .glb baked by skyfold')
     .requiredOption('-o, --output <file>', `output file, repeatable; format from the extension (${MESH_FORMATS.map((f) => '.' + f).join(' ')})`, collect((s) => s))
     .addOption(new Option('--format <format>', 'format for every -o file, overriding the extensions').choices(MESH_FORMATS))
     .option('--grid <colsxrows>', 'vertices across and down (default: chosen to meet --tolerance)', parseGrid)
@@ -88,7 +88,7 @@ export function registerBake(program: Command): void {
         brightnessFloor: opts.brightnessFloor,
         feather: opts.feather,
       };
-      const meta = { generator: `skyfold ${VERSION}`, rig: rigToDocument(rig), bake: settings as Record<string, unknown> };
+      const meta = { generator: `skyfold ${VERSION}`, rig: rigToDocument(rig, 'm'), bake: settings as Record<string, unknown> };
       const result = bakeMesh(rig, settings, meta);
       meta.bake = { ...settings, grid: [result.mesh.cols, result.mesh.rows], accuracy: result.accuracy, edge: result.edge, areaMax: result.areaMax };
       const perPixel = opts.alphaResolution === 'full' && targets.some((t) => t.format === 'mpcdi' || t.format === 'png');

@@ -169,7 +169,7 @@ export function registerFit(program: Command): void {
   program
     .command('fit')
     .description('solve rig quantities from tape distances and observed marker positions (least squares), with residuals and standard errors')
-    .argument('<rig>', 'the rough rig file (YAML or JSON)')
+    .argument('<rig>', 'the rough rig file (YAML or JSON), or a .glb baked by skyfold')
     .argument('<measurements>', 'measurement file: measurements (distances), observations (pixel → dome point), free (what to solve)')
     .option('-o, --output <file>', 'write the fitted rig here (without it, only the report)')
     .option('--force', 'overwrite an existing output file (also needed to overwrite the input rig)')

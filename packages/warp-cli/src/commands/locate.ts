@@ -10,7 +10,7 @@ export function registerLocate(program: Command): void {
   program
     .command('locate')
     .description('find the projector pixel that lights a dome direction (azimuth, altitude in degrees from the content eye)')
-    .argument('<rig>', 'rig file (YAML or JSON)')
+    .argument('<rig>', 'rig file (YAML or JSON), or a .glb baked by skyfold')
     .requiredOption('--direction <az,alt>', 'dome direction in degrees (repeatable): azimuth 0 = front, 90 = right; altitude 0 = springline, 90 = zenith', collect((s) => parseDirection(s)))
     .option('--json', 'machine-readable output')
     .addHelpText('after', '\nExamples:\n  skyfold locate rig.yaml --direction 0,90\n  skyfold locate rig.yaml --direction 0,30 --direction 90,30 --json')

@@ -54,7 +54,7 @@ export function registerPlan(program: Command): void {
   program
     .command('plan')
     .description('search mirror and projector placements within the dome for the best coverage, sharpness or both')
-    .argument('<rig>', 'rig file (YAML or JSON)')
+    .argument('<rig>', 'rig file (YAML or JSON), or a .glb baked by skyfold')
     .option('--vary <field>', `a field to search, repeatable: ${['mirror.center', 'mirror.axis', 'projector.position', 'projector.lookAt'].join(', ')}, or one coordinate such as mirror.center.z (default: ${PLAN_DEFAULTS.vary.join(' and ')})`, collect((s) => s))
     .addOption(new Option('--objective <name>', 'what to optimize').choices(PLAN_OBJECTIVES as string[]).default(PLAN_DEFAULTS.objective))
     .option('--seed <n>', 'seed of the search; the same seed gives the same answer', (s) => parsePositiveInt(s, 'a positive whole number'), PLAN_DEFAULTS.seed)

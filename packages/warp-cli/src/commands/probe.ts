@@ -10,7 +10,7 @@ export function registerProbe(program: Command): void {
   program
     .command('probe')
     .description('trace projector pixels through the mirror: hit kind, fisheye (u, v), azimuth, altitude, dome point')
-    .argument('<rig>', 'rig file (YAML or JSON)')
+    .argument('<rig>', 'rig file (YAML or JSON), or a .glb baked by skyfold')
     .requiredOption('--pixel <x,y>', 'projector pixel coordinate (repeatable; pixel centres are at +0.5)', collect((s) => parseNumberPair(s, 'X,Y (two numbers)')))
     .option('--json', 'machine-readable output')
     .addHelpText('after', '\nExamples:\n  skyfold probe rig.yaml --pixel 960.5,600.5\n  skyfold probe rig.yaml --pixel 10,10 --pixel 1900,1190 --json')

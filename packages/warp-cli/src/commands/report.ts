@@ -39,7 +39,7 @@ export function registerReport(program: Command): void {
   program
     .command('report')
     .description('judge a set-up: coverage, resolution, brightness, spill, focus and safety, with pictures and an HTML page')
-    .argument('<rig>', 'rig file (YAML or JSON)')
+    .argument('<rig>', 'rig file (YAML or JSON), or a .glb baked by skyfold')
     .requiredOption('-o, --output <dir>', 'folder for report.html, report.json and the PNG pictures')
     .option('--rays <n>', 'about how many projector-frame points to trace', (s) => parsePositiveInt(s), REPORT_DEFAULTS.vertices)
     .option('--json', 'print every figure as JSON (stable keys: coverage, pixels, resolution, brightness, spill, focus, safety)')

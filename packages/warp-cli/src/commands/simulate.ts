@@ -13,7 +13,7 @@ export function registerSimulate(program: Command): void {
   program
     .command('simulate')
     .description('show what the audience would see of a warped frame: a dome master of the dome as projected')
-    .argument('<rig>', 'rig file (YAML or JSON)')
+    .argument('<rig>', 'rig file (YAML or JSON), or a .glb baked by skyfold')
     .argument('<warped>', 'a warped projector frame (as skyfold warp writes it)')
     .requiredOption('-o, --output <file>', 'dome-master image to write (.png, .jpg, .tif, .webp)')
     .option('--size <n>', 'dome-master size in pixels', (s) => parsePositiveInt(s), 1024)

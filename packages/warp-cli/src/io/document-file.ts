@@ -202,10 +202,51 @@ export interface LoadedRig {
   path: string;
 }
 
-/** Reads, parses and validates a rig file; every failure is a one-line UserError naming the file and field. */
+/** Warp mesh files skyfold writes that carry no rig (the .glb does, in its extras). */
+const MESH_ONLY_EXTENSIONS = ['.obj', '.pfm', '.mpcdi', '.png', '.csv'];
+
+/**
+ * Reads, parses and validates a rig file — or a .glb baked by skyfold, whose root `extras.rig` holds
+ * the rig document (in metres); every failure is a one-line UserError naming the file and field.
+ */
 export function loadRig(path: string): LoadedRig {
-  const { value: rig, document } = readDocumentFile(path, 'rig file', (document) => rigFromDocument(document, { loadMesh: (file) => readDomeMesh(path, file) }));
+  const ext = /\.[^./\\]+$/.exec(path)?.[0]?.toLowerCase() ?? '';
+  if (MESH_ONLY_EXTENSIONS.includes(ext)) throw new UserError(`${path} is a warp mesh; this command needs the rig (or a .glb baked by skyfold)`);
+  const parse = (document: unknown) => rigFromDocument(document, { loadMesh: (file) => readDomeMesh(path, file) });
+  let rig: Rig;
+  let document: unknown;
+  if (ext === '.glb') {
+    document = rigDocumentOfGlb(readBinaryFile(path, 'mesh'), path);
+    try {
+      rig = parse(document);
+    } catch (e) {
+      if (e instanceof RigError) throw new UserError(`${path}: the rig in its extras: ${e.message}`);
+      throw e;
+    }
+  } else ({ value: rig, document } = readDocumentFile(path, 'rig file', parse));
   return { rig, document, warnings: rigWarnings(rig).map((w) => `${path}: ${w}`), path };
+}
+
+/**
+ * The rig document a skyfold .glb carries: the JSON chunk of the binary glTF (Khronos glTF 2.0, Sec.
+ * 4.4: a 12-byte header "glTF", version 2, length; then a chunk of length, type "JSON" and the JSON
+ * text), its root `extras.rig`.
+ */
+function rigDocumentOfGlb(bytes: Uint8Array, path: string): unknown {
+  const notOurs = `${path}: not a .glb baked by skyfold (no rig in its extras); this command needs the rig (or a .glb baked by skyfold)`;
+  const dv = new DataView(bytes.buffer, bytes.byteOffset, bytes.byteLength);
+  if (bytes.length < 20 || dv.getUint32(0, true) !== 0x46546c67 || dv.getUint32(16, true) !== 0x4e4f534a) throw new UserError(`${path}: not a binary glTF file`);
+  const length = dv.getUint32(12, true);
+  if (20 + length > bytes.length) throw new UserError(`${path}: not a binary glTF file (its JSON chunk runs past the end)`);
+  let json: { extras?: { rig?: unknown } };
+  try {
+    json = JSON.parse(new TextDecoder().decode(bytes.subarray(20, 20 + length)));
+  } catch {
+    throw new UserError(`${path}: not a binary glTF file (its JSON chunk does not parse)`);
+  }
+  const rig = json?.extras?.rig;
+  if (rig === null || typeof rig !== 'object') throw new UserError(notOurs);
+  return rig;
 }
 
 /** The rig file a command was given: loaded as {@link loadRig} does, its warnings printed to standard error. */
