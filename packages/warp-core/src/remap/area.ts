@@ -119,7 +119,7 @@ const FP_T = 6;
  * into fp. Returns false when the map magnifies there: then one bilinear sample at the map point
  * is the answer. areaRowColour has this written out; the two must stay the same arithmetic.
  */
-function plan(mx: Float32Array, my: Float32Array, w: number, h: number, W: number, H: number, i: number, j: number, k: number, maxSamples: number, top: number): boolean {
+function placeProbes(mx: Float32Array, my: Float32Array, w: number, h: number, W: number, H: number, i: number, j: number, k: number, maxSamples: number, top: number): boolean {
   const x = mx[k];
   const y = my[k];
   // Columns of the Jacobian: (xi, yi) per output step in i, (xj, yj) per step in j.
@@ -220,7 +220,7 @@ function areaRowN(lv: AreaLevels, map: RemapMap, o: Uint8Array | Uint16Array, j:
     }
     if (g !== 1) scaled = true;
     for (let ch = 0; ch < C; ch++) acc[ch] = 0;
-    if (!plan(mx, my, w, h, W, H, i, j, k, maxSamples, top)) {
+    if (!placeProbes(mx, my, w, h, W, H, i, j, k, maxSamples, top)) {
       // Magnified: one bilinear sample, the same arithmetic as the bilinear filter.
       addN(src.data, W, H, C, x, y, 1);
       for (let ch = 0; ch < C; ch++) o[oi + ch] = acc[ch] + 0.5;
@@ -251,7 +251,7 @@ function areaRowN(lv: AreaLevels, map: RemapMap, o: Uint8Array | Uint16Array, j:
   return scaled;
 }
 
-/** areaRowN for RGB and RGBA, with plan() and the bilinear samples written out and summed in locals. */
+/** areaRowN for RGB and RGBA, with placeProbes() and the bilinear samples written out and summed in locals. */
 function areaRowColour(lv: AreaLevels, map: RemapMap, o: Uint8Array | Uint16Array, j: number, maxSamples: number, C: 3 | 4): boolean {
   const four = C === 4;
   const src = lv.levels[0];
@@ -279,7 +279,7 @@ function areaRowColour(lv: AreaLevels, map: RemapMap, o: Uint8Array | Uint16Arra
       continue;
     }
     if (g !== 1) scaled = true;
-    // The footprint, as in plan() (written out here: the call and its stores cost a third of the kernel).
+    // The footprint, as in placeProbes() (written out here: the call and its stores cost a third of the kernel).
     let xi = 0;
     let yi = 0;
     const left = i > 0 && inside(mx[k - 1], my[k - 1], W, H);
