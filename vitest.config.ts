@@ -6,5 +6,7 @@ export default defineConfig({
     testTimeout: 60_000,
     hookTimeout: 120_000,
     pool: 'forks',
+    // runs stay independent of each other: no map kept between them unless a test asks for it
+    env: { SKYFOLD_MAP_CACHE: 'off' },
   },
 });

@@ -4,6 +4,8 @@ import { BAKE_DEFAULTS, pixelMapFromMesh, pixelMapFromRig, rigToDocument, type R
 import { readBinaryFile, readRig } from '../io/document-file.js';
 import { UserError } from '../errors.js';
 import { readGlb } from '../export/glb.js';
+import { cachedMap, mapCacheDir, mapCacheKey } from './map-cache.js';
+import { runContext } from '../io/run-context.js';
 
 export interface MapSettings extends SourceOrientation {
   brightness?: number;
@@ -23,7 +25,10 @@ export interface MapSource {
   build(size: [number, number], s: MapSettings): RemapMap;
 }
 
-export async function loadMapSource(path: string): Promise<MapSource> {
+const bytesOf = (a: Float64Array | Uint32Array) => new Uint8Array(a.buffer, a.byteOffset, a.byteLength);
+
+/** `cacheDir`: where maps traced from a rig are kept between runs (undefined: not kept); see map-cache.ts. */
+export async function loadMapSource(path: string, cacheDir: string | undefined = mapCacheDir(runContext().env)): Promise<MapSource> {
   if (path.toLowerCase().endsWith('.glb')) {
     const bytes = readBinaryFile(path, 'mesh');
     let mesh: WarpMesh;
@@ -51,20 +56,26 @@ export async function loadMapSource(path: string): Promise<MapSource> {
     };
   }
   const rig = readRig(path);
+  const key = 'rig:' + JSON.stringify(rigToDocument(rig, 'm', 9));
   return {
     kind: 'rig',
     width: rig.projector.resolution[0],
     height: rig.projector.resolution[1],
-    key: 'rig:' + JSON.stringify(rigToDocument(rig, 'm', 9)),
+    key,
     rig,
     build(size, s) {
-      return pixelMapFromRig(rig, size, {
+      const settings = {
         brightness: s.brightness ?? BAKE_DEFAULTS.brightness,
         brightnessFloor: s.brightnessFloor ?? BAKE_DEFAULTS.brightnessFloor,
         feather: s.feather ?? BAKE_DEFAULTS.feather,
-        flip: s.flip,
-        rotate: s.rotate,
-      });
+        flip: s.flip ?? false,
+        rotate: s.rotate ?? 0,
+      };
+      // tracing every pixel takes a while: kept between runs and shards (map-cache.ts); the rig
+      // document names an as-built dome's mesh file only, so its triangles go into the key too
+      const dome = rig.dome.mesh;
+      const geometry = dome ? `${key} dome:${createHash('sha256').update(bytesOf(dome.positions)).update(bytesOf(dome.indices)).digest('hex')}` : key;
+      return cachedMap(cacheDir, mapCacheKey(geometry, size, settings), () => pixelMapFromRig(rig, size, settings));
     },
   };
 }

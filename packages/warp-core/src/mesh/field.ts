@@ -6,34 +6,50 @@ import type { Vec3 } from '../math.js';
 import { fisheyeToDirection } from '../optics/fisheye.js';
 import { allocGridOutput, type GridOutput, type Tracer, landsOnDome } from '../trace.js';
 
-/** Dome area lit per unit of projector pixel area, at each point of the separable grid (xs, ys). */
+/** Rows of the grid traced at a time by domeAreaOnGrid: five traces of a band stay a few MiB. */
+const AREA_BAND_ROWS = 32;
+
+/**
+ * Dome area lit per unit of projector pixel area, at each point of the separable grid (xs, ys): the
+ * length of ∂D/∂x × ∂D/∂y, the dome point D differenced over ±h pixels. Traced in bands of rows, so
+ * memory stays small at any grid size; each value is the same as from one trace of the whole grid.
+ */
 export function domeAreaOnGrid(tracer: Tracer, xs: ArrayLike<number>, ys: ArrayLike<number>, h = 0.25): Float64Array {
   const nx = xs.length;
   const ny = ys.length;
   const shift = (a: ArrayLike<number>, d: number) => Float64Array.from(a as ArrayLike<number>, (x) => x + d);
+  const xm = shift(xs, -h);
+  const xp = shift(xs, +h);
+  const band = Math.min(ny, AREA_BAND_ROWS);
   const o = { points: true };
-  const c = tracer.grid(xs, ys, allocGridOutput(nx, ny, o));
-  const xm = tracer.grid(shift(xs, -h), ys, allocGridOutput(nx, ny, o));
-  const xp = tracer.grid(shift(xs, +h), ys, allocGridOutput(nx, ny, o));
-  const ym = tracer.grid(xs, shift(ys, -h), allocGridOutput(nx, ny, o));
-  const yp = tracer.grid(xs, shift(ys, +h), allocGridOutput(nx, ny, o));
+  const grids = [0, 1, 2, 3, 4].map(() => allocGridOutput(nx, band, o));
   const area = new Float64Array(nx * ny);
   const dx = [0, 0, 0];
   const dy = [0, 0, 0];
-  for (let k = 0; k < nx * ny; k++) {
-    if (!landsOnDome(c.kind[k])) {
-      area[k] = Number.NaN;
-      continue;
+  for (let j0 = 0; j0 < ny; j0 += band) {
+    const rows = Math.min(band, ny - j0);
+    const yb = Float64Array.from({ length: rows }, (_, j) => ys[j0 + j]);
+    // a short last band reuses the buffers: grid() fills only the first rows·nx entries
+    const c = tracer.grid(xs, yb, grids[0]);
+    const gxm = tracer.grid(xm, yb, grids[1]);
+    const gxp = tracer.grid(xp, yb, grids[2]);
+    const gym = tracer.grid(xs, shift(yb, -h), grids[3]);
+    const gyp = tracer.grid(xs, shift(yb, +h), grids[4]);
+    for (let kb = 0, k = j0 * nx; kb < rows * nx; kb++, k++) {
+      if (!landsOnDome(c.kind[kb])) {
+        area[k] = Number.NaN;
+        continue;
+      }
+      if (!difference(dx, c, gxm, gxp, kb, h) || !difference(dy, c, gym, gyp, kb, h)) {
+        area[k] = Number.NaN;
+        continue;
+      }
+      // |∂D/∂x × ∂D/∂y|: the dome area of one projector pixel there
+      const cx = dx[1] * dy[2] - dx[2] * dy[1];
+      const cy = dx[2] * dy[0] - dx[0] * dy[2];
+      const cz = dx[0] * dy[1] - dx[1] * dy[0];
+      area[k] = Math.sqrt(cx * cx + cy * cy + cz * cz);
     }
-    if (!difference(dx, c, xm, xp, k, h) || !difference(dy, c, ym, yp, k, h)) {
-      area[k] = Number.NaN;
-      continue;
-    }
-    // |∂D/∂x × ∂D/∂y|: the dome area of one projector pixel there
-    const cx = dx[1] * dy[2] - dx[2] * dy[1];
-    const cy = dx[2] * dy[0] - dx[0] * dy[2];
-    const cz = dx[0] * dy[1] - dx[1] * dy[0];
-    area[k] = Math.sqrt(cx * cx + cy * cy + cz * cz);
   }
   return area;
 }
