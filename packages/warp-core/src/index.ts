@@ -27,6 +27,7 @@ export { pixelMapFromMesh, pixelMapFromRig, type SourceOrientation } from './mes
 export { pixelFields, type PixelFieldOptions, type PixelFields } from './mesh/pixel-fields.js';
 export { fillLayoutFromMesh, fillLayoutFromRig, fillSamplePosition, type FillLayoutGrid } from './mesh/fill-layout.js';
 export { REMAP_DEFAULTS, createImageLike, remap } from './remap/remap.js';
+export { FIXED_FRACTION_BITS, fixedBilinearApplies, prepareBilinear, type PreparedBilinear } from './remap/bilinear-fixed.js';
 export type { ImageBuffer, RemapFilter, RemapMap } from './remap/types.js';
 export { simulationMap, type SimulateOptions } from './simulate.js';
 

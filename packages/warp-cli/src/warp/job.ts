@@ -1,5 +1,5 @@
 /** One frame's work, shared by the worker threads and the in-process path. */
-import { createImageLike, remap, type ImageBuffer, type RemapFilter, type RemapMap } from '@skyfold/warp-core';
+import { createImageLike, fixedBilinearApplies, prepareBilinear, remap, type ImageBuffer, type PreparedBilinear, type RemapFilter, type RemapMap } from '@skyfold/warp-core';
 import { decodeImage, encodeImage, FrameError, type EncodeOptions } from '../io/image-codec.js';
 import { writeFileAtomic } from '../io/output-file.js';
 
@@ -23,7 +23,7 @@ export interface FrameJob {
 export type FrameOutcome = { id: number; ok: true; ms: number } | { id: number; ok: false; reason: string };
 
 /** Decodes, checks, warps, encodes and writes one frame (temporary file, then rename). */
-export async function runFrameJob(job: FrameJob, map: RemapMap, s: WarpSettings, scratch: { out?: ImageBuffer }): Promise<FrameOutcome> {
+export async function runFrameJob(job: FrameJob, map: RemapMap, s: WarpSettings, scratch: { out?: ImageBuffer; prepared?: PreparedBilinear }): Promise<FrameOutcome> {
   const t0 = performance.now();
   try {
     const src = await decodeImage(job.input, s.maxPixels);
@@ -34,11 +34,22 @@ export async function runFrameJob(job: FrameJob, map: RemapMap, s: WarpSettings,
     if (!out || out.channels !== src.channels || out.data.BYTES_PER_ELEMENT !== src.data.BYTES_PER_ELEMENT) {
       out = scratch.out = createImageLike(src, map.width, map.height);
     }
-    remap(src, map, { filter: s.filter, out });
+    remap(src, map, { filter: s.filter, out, prepared: preparedFor(src, map, s.filter, scratch) });
     writeFileAtomic(job.output, await encodeImage(out, { ...s.encode, format: job.format }), job.temp);
     return { id: job.id, ok: true, ms: performance.now() - t0 };
   } catch (e) {
     const reason = e instanceof FrameError ? e.message : `failed: ${(e as Error)?.message?.split('\n')[0] ?? String(e)}`;
     return { id: job.id, ok: false, reason };
   }
+}
+
+/**
+ * The map prepared once for fixed-point bilinear sampling (warp-core bilinear-fixed.ts) of sources
+ * like `src`, kept in `scratch`; undefined for other filters and sources the float kernel serves.
+ */
+export function preparedFor(src: ImageBuffer, map: RemapMap, filter: RemapFilter, scratch: { prepared?: PreparedBilinear }): PreparedBilinear | undefined {
+  if (filter !== 'bilinear' || !fixedBilinearApplies(src)) return undefined;
+  const p = scratch.prepared;
+  if (p && p.map === map && p.srcWidth === src.width && p.srcHeight === src.height && p.channels === src.channels) return p;
+  return (scratch.prepared = prepareBilinear(map, src.width, src.height, src.channels as 3 | 4));
 }

@@ -3,6 +3,7 @@
  * frames in the same layout on standard output, so skyfold can sit between two ffmpeg processes.
  */
 import { remap, type ImageBuffer, type RemapFilter } from '@skyfold/warp-core';
+import { preparedFor } from './job.js';
 import { UserError } from '../errors.js';
 import { runContext } from '../io/run-context.js';
 import type { MapSettings, MapSource } from './map-source.js';
@@ -88,6 +89,7 @@ export async function runRawPipe(
     data: bps === 2 ? new Uint16Array(inAligned.buffer, inAligned.byteOffset, frameBytes / 2) : new Uint8Array(inAligned.buffer, inAligned.byteOffset, frameBytes),
   };
   let frames = 0;
+  const scratch = {};
   let readerGone = false;
   // an EPIPE also arrives as an 'error' event; without a listener it would end the process
   const onError = (e: unknown) => {
@@ -97,7 +99,7 @@ export async function runRawPipe(
   try {
     for await (const frame of rawFrames(streams.input, frameBytes)) {
       frame.copy(inAligned); // aligned copy: 16-bit samples are read in place (little-endian hosts)
-      remap(src, map, { filter, out });
+      remap(src, map, { filter, out, prepared: preparedFor(src, map, filter, scratch) });
       try {
         await write(streams.output, outBuf);
       } catch (e) {

@@ -8,6 +8,7 @@ import {
 } from '../srgb.js';
 import { areaRow, type AreaLevels } from './area.js';
 import { bilinearRow } from './bilinear.js';
+import { bilinearFixedRow, type PreparedBilinear } from './bilinear-fixed.js';
 import { nearestRow } from './nearest.js';
 import { halfLevel, pyramidDepth, reduceLevel, type SourcePyramid } from './pyramid.js';
 import { WasmLevels } from './wasm/pyramid-kernel.js';
@@ -30,6 +31,12 @@ export interface RemapOptions {
    * levels it needs into scratch memory kept between calls.
    */
   pyramid?: SourcePyramid;
+  /**
+   * 'bilinear' filter: the map prepared by prepareBilinear(map, src.width, src.height,
+   * src.channels), for fixed-point sampling (bilinear-fixed.ts: within 8 code values of the float
+   * kernel, most often equal); without it the float kernel runs.
+   */
+  prepared?: PreparedBilinear;
   /**
    * Scale colour in linear light, decoding and re-encoding sRGB (default true, DESIGN.md
    * "Brightness"); false scales code values directly, for data that is already linear.
@@ -95,9 +102,11 @@ export function remap(src: ImageBuffer, map: RemapMap, options: RemapOptions = {
   const linearGain = options.linearGain ?? REMAP_DEFAULTS.linearGain;
   const sixteen = src.data instanceof Uint16Array;
   const levels = filter === 'area' ? areaLevels(src, options.pyramid) : undefined;
+  const fixed = filter === 'bilinear' ? checkPrepared(options.prepared, src, map) : undefined;
   for (let j = rowStart; j < rowEnd; j++) {
     let scaled: boolean;
-    if (filter === 'bilinear') scaled = bilinearRow(src, map, out, j);
+    if (fixed) scaled = bilinearFixedRow(src.data as Uint8Array, fixed, out.data as Uint8Array, j);
+    else if (filter === 'bilinear') scaled = bilinearRow(src, map, out, j);
     else if (filter === 'nearest') scaled = nearestRow(src, map, out, j);
     else scaled = areaRow(levels!, map, out, j, maxSamples);
     // Scale the row while it is still in cache; a mask-only row (gains 0 and 1) is already final.
@@ -259,6 +268,17 @@ function gainRowCodes(out: ImageBuffer, mg: Float32Array, j: number): void {
       o[oi + ch] = v < max ? v : max;
     }
   }
+}
+
+function checkPrepared(p: PreparedBilinear | undefined, src: ImageBuffer, map: RemapMap): PreparedBilinear | undefined {
+  if (!p) return undefined;
+  if (p.map !== map || p.srcWidth !== src.width || p.srcHeight !== src.height || p.channels !== src.channels || !(src.data instanceof Uint8Array)) {
+    throw new Error(
+      `Expected options.prepared made from this map for an 8-bit ${src.width}×${src.height}×${src.channels} source but it was made for ` +
+        `${p.srcWidth}×${p.srcHeight}×${p.channels}${p.map !== map ? ' from another map' : ''}`,
+    );
+  }
+  return p;
 }
 
 function checkImage(img: ImageBuffer, name: string): void {
