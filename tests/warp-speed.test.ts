@@ -1,6 +1,6 @@
 /**
- * The speed-related parts of `skyfold warp`, run in-process on temporary files: the fixed-point
- * bilinear kernel the CLI uses, and the map kept between runs.
+ * The speed-related parts of `skyfold warp`, run in-process on temporary files: the PNG level
+ * (--compression), the fixed-point bilinear kernel the CLI uses, and the map kept between runs.
  */
 import { mkdirSync, readdirSync, readFileSync, statSync, writeFileSync } from 'node:fs';
 import { join } from 'node:path';
@@ -28,6 +28,23 @@ async function pixels(path: string): Promise<ImageBuffer> {
   const { data, info } = await sharp(path).raw().toBuffer({ resolveWithObject: true });
   return { width: info.width, height: info.height, channels: info.channels as 3, data: new Uint8Array(data) };
 }
+
+describe('skyfold warp --compression', () => {
+  it('trades size for speed losslessly: level 1 is larger than level 9, the pixels the same', async () => {
+    expect(await run('warp', RIG, SHOW, '-o', join(dir, 'c1'), '--compression', '1', '--jobs', '1', '--filter', 'bilinear')).toBe(0);
+    expect(await run('warp', RIG, SHOW, '-o', join(dir, 'c9'), '--compression', '9', '--jobs', '1', '--filter', 'bilinear')).toBe(0);
+    const a = join(dir, 'c1', 'f_1.png');
+    const b = join(dir, 'c9', 'f_1.png');
+    expect(statSync(a).size).toBeGreaterThan(statSync(b).size);
+    expect(Buffer.from((await pixels(a)).data).equals(Buffer.from((await pixels(b)).data))).toBe(true);
+  });
+
+  it('refuses a level outside 0-9', async () => {
+    const r = await skyfold(['warp', RIG, SHOW, '-o', join(dir, 'bad'), '--compression', '10']);
+    expect(r.code).toBe(2);
+    expect(r.stderr).toContain('--compression');
+  });
+});
 
 describe('skyfold warp --filter bilinear', () => {
   it('writes what the fixed-point kernel gives for the rig map', async () => {

@@ -16,6 +16,7 @@ interface WarpOptions {
   output?: string;
   format?: FrameFormat;
   quality?: number;
+  compression?: string;
   filter: RemapFilter;
   brightness: number;
   brightnessFloor: number;
@@ -44,6 +45,7 @@ export function registerWarp(program: Command): void {
     .option('-o, --output <dir>', 'output folder (never an input folder); for a video input, the output video file')
     .addOption(new Option('--format <format>', "output format (default: each input's own)").choices([...FRAME_FORMATS]))
     .option('--quality <q>', 'JPEG/WebP quality 1-100', parseNumberIn(1, 100))
+    .addOption(new Option('--compression <level>', 'PNG zlib level: 1 encodes fastest, 9 smallest (default 6)').choices(['0', '1', '2', '3', '4', '5', '6', '7', '8', '9']))
     .addOption(new Option('--filter <filter>', 'sampling filter').choices(['nearest', 'bilinear', 'area']).default(REMAP_DEFAULTS.filter))
     .option('--brightness <s>', 'brightness compensation strength 0-1', parseNumberIn(0, 1), BAKE_DEFAULTS.brightness)
     .option('--brightness-floor <f>', 'lowest brightness factor', parseNumberIn(0, 1), BAKE_DEFAULTS.brightnessFloor)
@@ -93,6 +95,7 @@ export function registerWarp(program: Command): void {
       for (const o of ['codec', 'crf', 'preset'] as const) if (opts[o] !== undefined) throw new UserError(`--${o}: only for a video input`);
       if (inputs.length === 0) throw new UserError('warp: give input frames (files, folders or a sequence pattern), or --raw-in');
       if (!opts.output) throw new UserError('warp: give an output folder with -o');
-      await warpFrames(map, mapSettings, inputs, { ...opts, output: opts.output });
+      const compression = opts.compression === undefined ? undefined : Number(opts.compression);
+      await warpFrames(map, mapSettings, inputs, { ...opts, output: opts.output, compression });
     });
 }

@@ -23,6 +23,8 @@ export interface BatchOptions {
   output: string;
   format?: FrameFormat;
   quality?: number;
+  /** PNG zlib level 0–9 (default 6). */
+  compression?: number;
   filter: RemapFilter;
   frames?: [number, number];
   shard?: [number, number];
@@ -61,7 +63,7 @@ export async function warpFrames(map: MapSource, mapSettings: MapSettings, input
     if (!size) {
       for (const j of jobs) finish(j, { id: j.id, ok: false, reason: 'unreadable image: no size in its header' });
     } else {
-      const settings: WarpSettings = { filter: opts.filter, maxPixels: opts.maxPixels, sourceSize: size, encode: { quality: opts.quality } };
+      const settings: WarpSettings = { filter: opts.filter, maxPixels: opts.maxPixels, sourceSize: size, encode: { quality: opts.quality, compression: opts.compression } };
       const threads = Math.max(1, Math.min(opts.jobs ?? availableParallelism(), jobs.length));
       const stop = stopOnSignals();
       try {

@@ -17,12 +17,16 @@ export interface OutputSettings {
   filter: RemapFilter;
   format?: FrameFormat;
   quality?: number;
+  compression?: number;
 }
+
+// PNG's level changes the bytes written; left out when not given, so run logs from before the option still match
+const compressionKey = (out: OutputSettings) => (out.compression === undefined ? {} : { compression: out.compression });
 
 /** Everything that changes an output frame, hashed: a frame done under another key is done again. */
 export function settingsKey(mapKey: string, mapSettings: MapSettings, out: OutputSettings): string {
   return createHash('sha256')
-    .update(JSON.stringify({ v: VERSION, map: mapKey, filter: out.filter, ...mapSettings, format: out.format ?? null, quality: out.quality ?? null }))
+    .update(JSON.stringify({ v: VERSION, map: mapKey, filter: out.filter, ...mapSettings, format: out.format ?? null, quality: out.quality ?? null, ...compressionKey(out) }))
     .digest('hex')
     .slice(0, 32);
 }
