@@ -10,7 +10,7 @@ import { readFileSync } from 'node:fs';
 import { join } from 'node:path';
 import sharp from 'sharp';
 import { parse } from 'yaml';
-import { rigFromDocument, pixelMapFromRig, remap, createImageLike, Tracer } from '@skyfold/warp-core';
+import { rigFromDocument, pixelMapFromRig, prepareBilinear, remap, createImageLike, Tracer } from '@skyfold/warp-core';
 
 const [name, dir, repsText] = process.argv.slice(2);
 const reps = Number(repsText ?? 5);
@@ -59,21 +59,40 @@ const CASES = {
     const rig = loadRig();
     return () => pixelMapFromRig(rig, [4096, 4096]);
   },
-  // the kernels on the real map: mask only (gain 1 or 0, like cv2.remap) and with the rig's brightness gain
-  bilinear: () => remapCase('mask', 'bilinear'),
-  'bilinear-gain': () => remapCase('gain', 'bilinear'),
+  // the kernels on the real map: mask only (gain 1 or 0, like cv2.remap) and with the rig's brightness
+  // gain; bilinear in fixed point from the map prepared once (untimed, as skyfold warp does once per
+  // run and cv2.convertMaps does for OpenCV), and the float kernel
+  bilinear: () => remapCase('mask', 'bilinear', true),
+  'bilinear-float': () => remapCase('mask', 'bilinear', false),
+  'bilinear-gain': () => remapCase('gain', 'bilinear', true),
   area: () => remapCase('gain', 'area'),
   // a whole frame: decode the 4096² PNG, warp, encode the 1920×1200 PNG; and decode + encode alone
   'frame-io': () => frameCase(null),
   'frame-bilinear': () => frameCase('bilinear'),
   'frame-area': () => frameCase('area'),
+  // encoding the warped 1920×1200 frame alone, at PNG (zlib) level 1 and at the default level 6
+  'encode-1': () => encodeCase(1),
+  'encode-6': () => encodeCase(6),
 };
 
-function remapCase(gainKind, filter) {
+/** Size of the last PNG an encode case wrote. */
+let encodedBytes = 0;
+
+function encodeCase(level) {
+  const map = loadMap('gain');
+  const img = { width: map.width, height: map.height, channels: 3, data: readFileSync(join(dir, 'warped-area.u8')) };
+  return async () => {
+    const png = await sharp(img.data, { raw: { width: img.width, height: img.height, channels: 3 } }).png({ compressionLevel: level }).toBuffer();
+    encodedBytes = png.length;
+  };
+}
+
+function remapCase(gainKind, filter, fixed) {
   const src = loadSource();
   const map = loadMap(gainKind);
   const out = createImageLike(src, map.width, map.height);
-  return () => remap(src, map, { filter, out });
+  const prepared = fixed ? prepareBilinear(map, src.width, src.height, 3) : undefined;
+  return () => remap(src, map, { filter, out, prepared });
 }
 
 function frameCase(filter) {
@@ -88,10 +107,12 @@ function frameCase(filter) {
       return encode(still);
     };
   }
+  let prepared;
   return async () => {
     const src = await decode(path);
     out ??= createImageLike(src, map.width, map.height);
-    remap(src, map, { filter, out });
+    if (filter === 'bilinear') prepared ??= prepareBilinear(map, src.width, src.height, 3);
+    remap(src, map, { filter, out, prepared });
     return encode(out);
   };
 }
@@ -113,4 +134,5 @@ for (let r = 0; r < (cold ? 1 : reps); r++) {
 }
 // ru_maxrss is in KiB on Linux (getrusage(2))
 const maxRssMiB = process.resourceUsage().maxRSS / 1024;
-process.stdout.write(JSON.stringify({ case: name, times, maxRssMiB, baseRssMiB }) + '\n');
+const extra = name.startsWith('encode-') ? { bytes: encodedBytes } : {};
+process.stdout.write(JSON.stringify({ case: name, times, maxRssMiB, baseRssMiB, ...extra }) + '\n');

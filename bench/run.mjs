@@ -19,7 +19,7 @@ import { join } from 'node:path';
 import { fileURLToPath } from 'node:url';
 import sharp from 'sharp';
 import { parse } from 'yaml';
-import { rigFromDocument, pixelMapFromRig, remap } from '@skyfold/warp-core';
+import { rigFromDocument, pixelMapFromRig, prepareBilinear, remap } from '@skyfold/warp-core';
 import { showFrame } from './show-frame.mjs';
 import { RESULTS_SCHEMA, writeReadmeTable } from '../scripts/bench-table.mjs';
 
@@ -68,7 +68,9 @@ async function prepare(work) {
   writeFileSync(join(work, 'map-mask.f32'), bytes(mask));
   const litFraction = lit / mask.length;
   writeFileSync(join(work, 'map.json'), JSON.stringify({ width: map.width, height: map.height, source: SOURCE, litFraction }));
-  writeFileSync(join(work, 'ours-bilinear.u8'), remap(src, { ...map, gain: mask }, { filter: 'bilinear' }).data);
+  const masked = { ...map, gain: mask };
+  // what skyfold warp --filter bilinear gives, for the comparison with OpenCV's fixed-point remap
+  writeFileSync(join(work, 'ours-bilinear.u8'), remap(src, masked, { filter: 'bilinear', prepared: prepareBilinear(masked, SOURCE, SOURCE, 3) }).data);
   writeFileSync(join(work, 'warped-area.u8'), remap(src, map, { filter: 'area' }).data);
   return { map: { width: map.width, height: map.height, source: SOURCE, litFraction }, pngMiB: statSync(join(work, 'frame.png')).size / 2 ** 20 };
 }
@@ -105,7 +107,7 @@ const median = (a) => {
 };
 const summary = (values) => ({ median: median(values), min: Math.min(...values), max: Math.max(...values), values });
 
-const CASES = ['trace', 'map', 'bilinear', 'bilinear-gain', 'area', 'opencv-float', 'opencv-fixed', 'frame-io', 'frame-bilinear', 'frame-area'];
+const CASES = ['trace', 'map', 'bilinear', 'bilinear-float', 'bilinear-gain', 'area', 'opencv-float', 'opencv-fixed', 'frame-io', 'frame-bilinear', 'frame-area', 'encode-1', 'encode-6'];
 
 const m = machine();
 console.log(`skyfold bench on ${m.cpu}, nproc ${m.nproc}, Node ${m.node}${quick ? ' (quick)' : ''}`);
@@ -143,7 +145,8 @@ if (have('map')) {
   row('map-time', `per-pixel map from the rig onto ${SOURCE}² (trace, mask, brightness), one core`, 'ms', ms('map'), '');
   row('map-memory', 'peak memory of the process building that map', 'MiB', perRound.map.map((r) => r.maxRssMiB), '≤ 250');
 }
-if (have('bilinear')) row('bilinear', `bilinear remap, ${SOURCE}² RGB8 → ${W} × ${H}, mask-only map, one thread`, 'ms', ms('bilinear'));
+if (have('bilinear')) row('bilinear', `bilinear remap (fixed point, map prepared once), ${SOURCE}² RGB8 → ${W} × ${H}, mask-only map, one thread`, 'ms', ms('bilinear'));
+if (have('bilinear', 'bilinear-float')) row('fixed-vs-float', 'bilinear in fixed point / the float kernel', '×', ratio('bilinear', 'bilinear-float'));
 if (have('bilinear', 'opencv-float')) row('vs-opencv-float', 'bilinear / OpenCV cv2.remap INTER_LINEAR, float maps', '×', ratio('bilinear', 'opencv-float'), '');
 if (have('bilinear', 'opencv-fixed')) row('vs-opencv-fixed', 'bilinear / OpenCV cv2.remap INTER_LINEAR, fixed-point maps (cv2.convertMaps)', '×', ratio('bilinear', 'opencv-fixed'), '≤ 1.5');
 if (have('opencv-fixed')) row('opencv-fixed', 'OpenCV cv2.remap, fixed-point maps, one thread', 'ms', ms('opencv-fixed'));
@@ -152,6 +155,10 @@ if (have('area', 'bilinear-gain')) row('area-vs-bilinear', '`area` remap (defaul
 if (have('frame-io')) row('frame-io', `decode the ${SOURCE}² PNG + encode the ${W} × ${H} PNG (level 6), no warp`, 'ms', ms('frame-io'));
 if (have('frame-bilinear', 'frame-io')) row('frame-bilinear', 'whole frame with `bilinear` / decode + encode alone', '×', ratio('frame-bilinear', 'frame-io'), '≤ 1.2');
 if (have('frame-area', 'frame-io')) row('frame-area', 'whole frame with `area` / decode + encode alone', '×', ratio('frame-area', 'frame-io'), '');
+if (have('encode-1', 'encode-6')) {
+  row('encode-speed', `PNG encode of the ${W} × ${H} frame: zlib level 6 (default) time / level 1 time`, '×', ratio('encode-6', 'encode-1'));
+  row('encode-size', 'PNG size: level 1 / level 6', '×', perRound['encode-1'].map((r, i) => r.bytes / perRound['encode-6'][i].bytes));
+}
 
 const results = {
   schema: RESULTS_SCHEMA,
