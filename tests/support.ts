@@ -97,13 +97,17 @@ export function spawnSkyfold(args: string[], opts: RunOptions = {}): { child: Ch
   return { child, done: collect(child, opts.input) };
 }
 
-/** Polls `pred` every few milliseconds until it holds or `timeoutMs` has passed. */
-export function waitFor(pred: () => boolean, timeoutMs: number): Promise<boolean> {
-  const t0 = Date.now();
+/**
+ * Polls `pred` every few milliseconds while `child` runs: true once it holds, false if the child
+ * ends first. No clock: on a busy machine the child is simply slower.
+ */
+export function whileRunning(child: ChildProcess, pred: () => boolean): Promise<boolean> {
+  let ended = false;
+  child.once('close', () => (ended = true));
   return new Promise((resolve) => {
     const tick = () => {
       if (pred()) resolve(true);
-      else if (Date.now() - t0 > timeoutMs) resolve(false);
+      else if (ended || child.exitCode !== null || child.signalCode !== null) resolve(pred());
       else setTimeout(tick, 5);
     };
     tick();
