@@ -4,17 +4,17 @@
  * is written only when missing and never in CI; on a mismatch a diff image goes to a temporary
  * folder and its path is printed. Delete the baseline and rerun locally to accept a deliberate change.
  */
-import { spawnSync } from 'node:child_process';
 import { copyFileSync, existsSync, mkdtempSync, rmSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
+import { Readable, Writable } from 'node:stream';
 import { fileURLToPath } from 'node:url';
 import sharp from 'sharp';
 import { describe, expect, it } from 'vitest';
 import { gridCard } from '@skyfold/warp-core';
+import { run } from '../src/main.js';
 
 const ROOT = fileURLToPath(new URL('../../..', import.meta.url));
-const BIN = join(ROOT, 'node_modules', '.bin', 'skyfold');
 const GOLDEN = join(ROOT, 'fixtures', 'golden');
 /** The demo rig with a 320 × 200 projector. */
 const RIG = join(GOLDEN, 'warp-rig-320x200.yaml');
@@ -59,8 +59,10 @@ describe('skyfold warp golden image', () => {
       await sharp(g.data, { raw: { width: g.width, height: g.height, channels: g.channels } }).png().toFile(INPUT);
     }
     const out = mkdtempSync(join(tmpdir(), 'skyfold-golden-'));
-    const r = spawnSync(BIN, ['warp', RIG, INPUT, '-o', out, '--jobs', '1', ...SETTINGS], { encoding: 'utf8', env: { ...process.env, CI: 'true' } });
-    expect(r.status, r.stderr).toBe(0);
+    let stderr = '';
+    const sink = (keep: boolean) => new Writable({ write: (c: Buffer, _e, done) => (keep && (stderr += String(c)), done()) });
+    const code = await run(['warp', RIG, INPUT, '-o', out, '--jobs', '1', ...SETTINGS], { stdin: Readable.from([]), stdout: sink(false), stderr: sink(true), env: { ...process.env, CI: 'true' } });
+    expect(code, stderr).toBe(0);
     const actualPath = join(out, 'grid-256.png');
 
     if (!existsSync(BASELINE)) {
