@@ -34,14 +34,17 @@ export function starterRigText(units: 'm' | 'ft'): string {
   const u = units === 'ft' ? 'ft' : 'm';
   const L = (m: number) => len(m, u);
   const P = (p: readonly number[]) => point(p, u);
-  return `# skyfold rig file: ${d.name}.
+  // the scenario's own words in the file's units: a 16.4 ft dome, a 23.6 in mirror
+  const name = units === 'ft' ? d.name.replace('5 m', `${(d.domeDiameter / 0.3048).toFixed(1)} ft`) : d.name;
+  const mirrorSize = units === 'ft' ? `${((2 * d.mirrorRadius) / 0.0254).toFixed(1)} in` : `${Math.round(200 * d.mirrorRadius)} cm`;
+  return `# skyfold rig file: ${name}.
 # Frame: origin at the centre of the dome's springline circle, +z up (zenith), +y toward the front
 # of the dome, +x to the right of a viewer facing the front. Azimuth 0 = front, 90 = right.
 # Lengths: a bare number is in \`units\`; a string carries its own unit ("8 ft", "19 in", "7 ft 6 in",
 # "35 cm", "2.4 m"). Angles are degrees. Measure with a tape and refine with \`skyfold fit\`.
 # Safety: never look into the beam; secure the mirror and its stand so they cannot tip; keep aisles
 # and exits clear; local fire and building codes and the projector maker's instructions come first.
-name: "${d.name}"
+name: "${name}"
 units: ${u}
 
 dome:
@@ -49,7 +52,7 @@ dome:
   floor: ${L(d.floor)}         # how far the floor lies below the springline
 
 mirror:
-  # a 60 cm hemispherical safety mirror; give \`cap: {width, depth}\` instead of \`radius\` for a
+  # a ${mirrorSize} hemispherical safety mirror; give \`cap: {width, depth}\` instead of \`radius\` for a
   # shallower cap (radius from the sagitta relation)
   radius: ${L(d.mirrorRadius)}
   center: ${P(d.mirrorCenter)}   # near the back wall, on a stand

@@ -3,7 +3,8 @@
  * (given as data: URIs by the caller), with inline styles and no scripts or outside resources, so it
  * opens in any browser with nothing else installed.
  */
-import { describeArc, formatLength, type LengthUnit, type ReportFigures } from '@skyfold/warp-core';
+import { lengthLabel } from './scales.js';
+import { describeArc, EYE_BANDS, formatLength, type LengthUnit, type ReportFigures } from '@skyfold/warp-core';
 
 export interface HtmlPicture {
   /** A data: URI, or the PNG file's path relative to the page. */
@@ -38,6 +39,7 @@ export function reportHtml(f: ReportFigures, pictures: readonly HtmlPicture[], m
     .filter((a) => Math.round(a.azimuth) % 15 === 0)
     .map((a) => `<tr><td>${a.azimuth.toFixed(0)}°</td><td>${a.lowest === null ? '–' : a.lowest.toFixed(1) + '°'}</td><td>${a.highest === null ? '–' : a.highest.toFixed(1) + '°'}</td><td>${e(gapsText(a.gaps))}</td></tr>`)
     .join('\n');
+  const eyeHeights = EYE_BANDS.map((b) => `${b.label} ${lengthLabel(b.from, units)} to ${lengthLabel(b.to, units)}`).join(', ');
   const findings = f.safety.findings.map((x) => `<li class="${x.level}"><strong>${x.level}</strong> ${e(x.text)}</li>`).join('\n');
   const cautions = f.safety.cautions.map((c) => `<li>${e(c)}</li>`).join('\n');
   const figs = pictures
@@ -104,7 +106,7 @@ ${findings}
 <ul>
 ${cautions}
 </ul>
-<p class="note">Eye heights: ${e(f.safety.source)}.</p>
+<p class="note">Eye heights above the floor, ${e(f.safety.source)}: ${e(eyeHeights)}.</p>
 
 <h2>Pictures</h2>
 ${figs}

@@ -359,7 +359,7 @@ export function safetyFigures(s: FrameSample): { figures: SafetyFigures; zones: 
     findings.unshift({ level: 'note', text: `The beam between projector and mirror stays clear of the eye-height bands (the lens is ${L(lensH)} above the floor, the mirror's centre ${L(mirrorH)}); a child or someone bending down can still meet it, so keep its path clear.` });
   }
   return {
-    figures: { floorKnown: true, lensHeight: r(lensH, 3), mirrorHeight: r(mirrorH, 3), bands, findings, cautions: STANDING_CAUTIONS, source: 'common practice (seated ≈ 1.2 m, standing ≈ 1.5–1.8 m, sitting on the floor ≈ 0.6–0.9 m)' },
+    figures: { floorKnown: true, lensHeight: r(lensH, 3), mirrorHeight: r(mirrorH, 3), bands, findings, cautions: STANDING_CAUTIONS, source: 'common practice' },
     zones,
   };
 }
