@@ -86,7 +86,7 @@ describe('skyfold fit', () => {
     const text = readFileSync(out, 'utf8');
     expect(text).toMatch(/^# Fitted by `skyfold fit` from .*demo-rig\.yaml and .*demo-measurements\.yaml\./);
     expect(text).toContain('# Solved: mirror.center, projector.position, projector.lookAt, projector.roll, projector.throwRatio;');
-    expect(text).toMatch(/\n {2}center: \[[^\]]+\] # fitted, ± \[[\d.]+ mm, [\d.]+ mm, [\d.]+ mm\]; was \[0 m, -1\.95 m, 0\.15 m\]\n/);
+    expect(text).toMatch(/\n {2}# fitted, ± \[[\d.]+ mm, [\d.]+ mm, [\d.]+ mm\]; was \[0 m, -1\.95 m, 0\.15 m\]\n {2}center: \[[^\]]+\] +# near the back wall, on a stand\n/);
     const fitted = loadRigFile(out);
     const [medBefore, p95Before] = landing(truth, loadRigFile(RIG));
     const [medAfter, p95After] = landing(truth, fitted);

@@ -2,7 +2,7 @@
 import { realpathSync } from 'node:fs';
 import { resolve } from 'node:path';
 import { InvalidArgumentError, type Command } from 'commander';
-import { Document, isMap, visit } from 'yaml';
+import { isMap, isScalar, parseDocument } from 'yaml';
 import {
   fitRig,
   FIT_DEFAULTS,
@@ -13,7 +13,6 @@ import {
   parseFreeQuantity,
   RAD,
   RigError,
-  rigToDocument,
   wrapDegrees,
   type FitParameter,
   type FitResidual,
@@ -21,8 +20,10 @@ import {
   type FreeQuantity,
   type LengthUnit,
   type MeasurementSet,
+  type Rig,
 } from '@skyfold/warp-core';
-import { loadRig, readDocumentFile } from '../io/document-file.js';
+import { loadRig, readDocumentFile, readTextFile } from '../io/document-file.js';
+import { editRigDocument, keepCommentColumns } from '../io/rig-edit.js';
 import { refuseToOverwrite, writeOutputFile } from '../io/output-file.js';
 import { UserError } from '../errors.js';
 import { fixed, printJson, table } from '../format.js';
@@ -121,15 +122,14 @@ function summaryLine(s: FitResult['after'], units: LengthUnit): string {
   return parts.join(', ');
 }
 
-/** The fitted rig as a rig file, with comments saying what was fitted and how well. */
-export function fittedRigText(result: FitResult, rigPath: string, measurementsPath: string, units: LengthUnit): string {
-  const doc = new Document(rigToDocument(result.rig, result.rig.units));
-  visit(doc, {
-    Seq(_, node) {
-      node.flow = true;
-    },
-  });
-  if (isMap(doc.contents)) doc.contents.items.forEach((item, i) => i > 0 && isMap(item.value) && ((item.key as { spaceBefore?: boolean }).spaceBefore = true));
+/**
+ * The fitted rig as a rig file: the user's own document (`rigText`, which `before` was read from) with
+ * only the fitted values changed, in the form they were written, its comments kept, and comments
+ * added saying what was fitted and how well.
+ */
+export function fittedRigText(result: FitResult, before: Rig, rigText: string, rigPath: string, measurementsPath: string, units: LengthUnit): string {
+  const doc = parseDocument(rigText);
+  const edit = editRigDocument(doc, before, result.rig);
   const lines = [
     ` Fitted by \`skyfold fit\` from ${rigPath} and ${measurementsPath}.`,
     ` Solved: ${result.free.join(', ')}; everything else is as in ${rigPath}.`,
@@ -138,20 +138,27 @@ export function fittedRigText(result: FitResult, rigPath: string, measurementsPa
     ` Misfit after:  ${summaryLine(result.after, units)}.`,
   ];
   if (result.worst) lines.push(` Worst item: ${result.worst.field} (${result.worst.label}), ${fixed(Math.abs(result.worst.normalized), 2)} sigma.`);
-  for (const w of result.warnings) lines.push(` Warning: ${wordNotice(w, result.rig.units)}.`);
-  lines.push(' Standard errors (one sigma) are beside each fitted value.');
-  doc.commentBefore = lines.join('\n');
-  const ru = result.rig.units;
+  for (const w of result.warnings) lines.push(` Warning: ${wordNotice(w, before.units)}.`);
+  lines.push(' Standard errors (one sigma) are above each fitted value.');
+  doc.commentBefore = [...lines, ...(doc.commentBefore ? ['', doc.commentBefore] : [])].join('\n');
+  const ru = before.units;
   for (const p of result.parameters) {
-    const path = p.name.split('.');
-    const node = doc.getIn(path, true) as { comment?: string } | undefined;
-    if (!node || typeof node !== 'object') continue;
     let note = ` fitted, ± ${showQuantity(p, p.stderr, ru, true)}`;
     if (p.name === 'projector.lookAt' && p.aimStderr) note += ` (aim ± ${p.aimStderr.map((s) => (s === null ? 'undetermined' : `${fixed(s * RAD, 3)}°`)).join(', ')})`;
     note += `; was ${showQuantity(p, p.initial, ru)}`;
-    node.comment = note;
+    noteAbove(doc, edit.written.get(p.name) ?? p.name.split('.'), note);
   }
-  return doc.toString({ lineWidth: 0, flowCollectionPadding: false });
+  return keepCommentColumns(rigText, doc.toString({ lineWidth: 0, flowCollectionPadding: false }));
+}
+
+/** A comment line above the key that holds `path` (for a component of a point, above the point's key). */
+function noteAbove(doc: ReturnType<typeof parseDocument>, path: readonly (string | number)[], note: string): void {
+  const keyPath = path.filter((k) => typeof k === 'string');
+  const parent = doc.getIn(keyPath.slice(0, -1), true);
+  if (!isMap(parent)) return;
+  const pair = parent.items.find((it) => isScalar(it.key) && it.key.value === keyPath[keyPath.length - 1]);
+  if (!pair || !isScalar(pair.key)) return;
+  pair.key.commentBefore = pair.key.commentBefore ? `${pair.key.commentBefore}\n${note}` : note;
 }
 
 function sameFile(a: string, b: string): boolean {
@@ -193,7 +200,7 @@ export function registerFit(program: Command): void {
         throw e;
       }
       const units = set.units;
-      if (opts.output) writeOutputFile(opts.output, fittedRigText(result, rigPath, measurementsPath, units));
+      if (opts.output) writeOutputFile(opts.output, fittedRigText(result, rig, readTextFile(rigPath, 'rig file'), rigPath, measurementsPath, units));
       const ru = rig.units;
       if (opts.json) {
         const parameters: Record<string, unknown> = {};

@@ -1,9 +1,10 @@
 /** `skyfold plan`: searches mirror and projector placements and writes the best as a rig file. */
 import { basename, dirname, extname, join } from 'node:path';
 import { Option, type Command } from 'commander';
-import { stringify } from 'yaml';
-import { formatLength, PLAN_DEFAULTS, PLAN_OBJECTIVES, planRig, RigError, rigToDocument, type PlanCandidate, type PlanObjective, type PlanResult } from '@skyfold/warp-core';
-import { readRig } from '../io/document-file.js';
+import { parseDocument } from 'yaml';
+import { formatLength, PLAN_DEFAULTS, PLAN_OBJECTIVES, planRig, RigError, rigToDocument, type PlanCandidate, type PlanObjective, type PlanResult, type Rig } from '@skyfold/warp-core';
+import { readRig, readTextFile } from '../io/document-file.js';
+import { editRigDocument, keepCommentColumns } from '../io/rig-edit.js';
 import { writeOutputFile } from '../io/output-file.js';
 import { UserError } from '../errors.js';
 import { printJson, table } from '../format.js';
@@ -50,6 +51,23 @@ export function planSummary(p: PlanResult, units: Parameters<typeof formatLength
   return table(['', 'coverage', 'arcmin/px', 'p95', 'pixels lit', 'focus depth', 'score', names.join(', ')], rows);
 }
 
+/**
+ * The best placement as a rig file: the user's own document (`rigText`, which `before` was read from)
+ * with only the varied values changed, in the form they were written, its comments kept.
+ */
+export function plannedRigText(result: PlanResult, before: Rig, rigText: string, rigPath: string): string {
+  const best = result.best[0];
+  const doc = parseDocument(rigText);
+  editRigDocument(doc, before, best.rig);
+  const header = [
+    ` Placement found by skyfold ${VERSION} plan (objective ${result.objective}, seed ${result.seed}, ${result.evaluations} evaluations)`,
+    ` from ${rigPath}; varied: ${Object.keys(best.values).join(', ')}.`,
+    ' Check it with `skyfold report` before moving anything; measure the real placement and refine with `skyfold fit`.',
+  ];
+  doc.commentBefore = [...header, ...(doc.commentBefore ? ['', doc.commentBefore] : [])].join('\n');
+  return keepCommentColumns(rigText, doc.toString({ lineWidth: 0, flowCollectionPadding: false }));
+}
+
 export function registerPlan(program: Command): void {
   program
     .command('plan')
@@ -79,12 +97,7 @@ export function registerPlan(program: Command): void {
       const best = result.best[0];
       let wrote: string | null = null;
       if (best) {
-        const doc = rigToDocument(best.rig);
-        const header =
-          `# Placement found by skyfold ${VERSION} plan (objective ${result.objective}, seed ${result.seed}, ${result.evaluations} evaluations)\n` +
-          `# from ${rigPath}; varied: ${Object.keys(best.values).join(', ')}.\n` +
-          `# Check it with \`skyfold report\` before moving anything; measure the real placement and refine with \`skyfold fit\`.\n`;
-        writeOutputFile(out, header + stringify(doc, { flow: false }));
+        writeOutputFile(out, plannedRigText(result, rig, readTextFile(rigPath, 'rig file'), rigPath));
         wrote = out;
       }
       if (opts.json) {
