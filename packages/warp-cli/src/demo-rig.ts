@@ -66,6 +66,7 @@ projector:
   resolution: [${d.resolution.join(', ')}] # WUXGA
   throwRatio: ${d.throwRatio}        # throw distance / image width
   lensShift: [${d.lensShift.join(', ')}]      # image offset in fractions of width and height; +y moves it up
+  # aperture: ${units === 'ft' ? '"0.4 in"' : '"10 mm"'}    # optional: the lens's entrance-pupil diameter (focal length / f-number), for the focus blur
 
 content:
   fov: 180               # the dome master's field of view, degrees

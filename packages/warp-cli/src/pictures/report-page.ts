@@ -163,7 +163,7 @@ ${row('Outside the content', pct(sp.outsideContent.share))}
 ${row('Lens to mirror, along the rays', `${L(fo.distance.min)} – ${L(fo.distance.max)}`, `median ${L(fo.distance.median)}`)}
 ${row('Depth along the lens axis', `${L(fo.depth.near)} – ${L(fo.depth.far)}`, `${L(fo.depth.range)} deep`)}
 ${row('Best focus', L(fo.bestFocus), 'halves the worst defocus at both ends')}
-${row('Blur at best focus', fo.blur ? `${num(fo.blur.pixelsP95)} px (95%), ${num(fo.blur.pixelsMax)} px worst` : 'give projector.aperture for an estimate', fo.blur ? `${num(fo.blur.arcminP95)} arcmin on the dome (95%)` : '')}
+${row('Blur at best focus', fo.blur ? `${num(fo.blur.pixelsP95)} px (95%), ${num(fo.blur.pixelsMax)} px worst` : 'give projector.aperture (the lens’s entrance-pupil diameter: focal length ÷ f-number) for an estimate', fo.blur ? `${num(fo.blur.arcminP95)} arcmin on the dome (95%)` : '')}
 ${fo.warnings.map((w) => row('Warning', w)).join('\n')}
 </table>
 

@@ -265,7 +265,7 @@ export function rigFromDocument(input: unknown, options: RigDocumentOptions = {}
       height: r.length(need(b, 'height', 'projector.body'), 'projector.body.height', 'positive'),
     };
   }
-  const aperture = proj.aperture === undefined ? undefined : r.length(proj.aperture, 'projector.aperture', 'positive');
+  const aperture = proj.aperture === undefined ? undefined : apertureLength(r, proj.aperture);
   const minFocus = proj.minFocus === undefined ? undefined : r.length(proj.minFocus, 'projector.minFocus', 'positive');
 
   const content = section(doc, 'content', false) ?? {};
@@ -290,6 +290,24 @@ export function rigFromDocument(input: unknown, options: RigDocumentOptions = {}
   };
   validateRigGeometry(rig);
   return rig;
+}
+
+/** What projector.aperture is, for its errors: a length, not an f-number. */
+const APERTURE_MEANING = 'the diameter of the lens\'s entrance pupil, a length: its focal length divided by its f-number (a 20 mm lens at f/2: "10 mm"), not the f-number itself';
+/** Wider than the entrance pupil of any projector lens (from memory: a few centimetres at most). */
+const MAX_APERTURE = 0.2;
+
+function apertureLength(r: FieldReader, v: unknown): number {
+  if (typeof v === 'string' && /^\s*f\s*\/|^\s*f\s*\d/i.test(v)) throw new RigError('projector.aperture', `expected ${APERTURE_MEANING}; got ${showValue(v)}`);
+  let metres: number;
+  try {
+    metres = r.length(v, 'projector.aperture', 'positive');
+  } catch (e) {
+    if (e instanceof RigError) throw new RigError('projector.aperture', `expected ${APERTURE_MEANING}; got ${showValue(v)}`);
+    throw e;
+  }
+  if (metres > MAX_APERTURE) throw new RigError('projector.aperture', `${showValue(v)} is wider than any projector lens: expected ${APERTURE_MEANING}`);
+  return metres;
 }
 
 function domeMeshFromDocument(dome: Doc, units: LengthUnit, options: RigDocumentOptions): DomeMesh | undefined {
