@@ -25,6 +25,7 @@ interface WarpOptions {
   shard?: [number, number];
   jobs?: number;
   flip?: boolean;
+  nonSquare?: boolean;
   rotate: string;
   overwrite?: boolean;
   maxPixels: number;
@@ -54,6 +55,7 @@ export function registerWarp(program: Command): void {
     .option('--shard <k/n>', 'only frame K of every N (K from 1), to split a show across machines', asOptionParser('--shard', parseShard))
     .option('--jobs <n>', 'worker threads (default: the core count)', (s) => parsePositiveInt(s))
     .option('--flip', 'the content arrives mirrored left-right')
+    .option('--non-square', 'warp frames that are not square (a dome master is): u across the width, v down the height')
     .addOption(new Option('--rotate <deg>', 'the content arrives turned: degrees clockwise to turn it back').choices(['0', '90', '180', '270']).default('0'))
     .option('--overwrite', 'redo frames even when the run log says they are done')
     .option('--max-pixels <n>', 'refuse frames larger than this many pixels', (s) => parsePositiveInt(s), DEFAULT_MAX_PIXELS)
@@ -72,7 +74,7 @@ export function registerWarp(program: Command): void {
     .action(async (source: string, inputs: string[], opts: WarpOptions, cmd: Command) => {
       const map = await loadMapSource(source);
       const rotate = Number(opts.rotate) as 0 | 90 | 180 | 270;
-      const mapSettings: MapSettings = { brightness: opts.brightness, brightnessFloor: opts.brightnessFloor, feather: opts.feather, flip: opts.flip, rotate };
+      const mapSettings: MapSettings = { brightness: opts.brightness, brightnessFloor: opts.brightnessFloor, feather: opts.feather, flip: opts.flip, rotate, ...(opts.nonSquare ? { nonSquare: true } : {}) };
       if (map.kind === 'mesh') {
         for (const o of ['brightnessFloor', 'feather'] as const) {
           if (cmd.getOptionValueSource(o) === 'cli') throw new UserError(`--${o === 'brightnessFloor' ? 'brightness-floor' : o}: a baked mesh carries its own; re-bake it, or warp from the rig`);

@@ -11,6 +11,20 @@ export interface MapSettings extends SourceOrientation {
   brightness?: number;
   brightnessFloor?: number;
   feather?: number;
+  /** Warp frames that are not square (u across the width, v down the height) instead of refusing them. */
+  nonSquare?: boolean;
+}
+
+/**
+ * A dome master is square, its fisheye circle touching all four sides (docs/design.md, fisheye
+ * convention; the draft Dome Master Show File Format, Sec. II); a frame of another shape is refused
+ * with the reason unless asked for.
+ */
+export function checkSquare(size: readonly [number, number], s: MapSettings): void {
+  if (size[0] === size[1] || s.nonSquare) return;
+  throw new UserError(
+    `the frames are ${size[0]}x${size[1]}, not square: a dome master is square, its fisheye circle touching all four sides; pass --non-square to warp them anyway (the circle stretched over the whole frame)`,
+  );
 }
 
 export interface MapSource {
@@ -45,6 +59,7 @@ export async function loadMapSource(path: string, cacheDir: string | undefined =
       key,
       mesh,
       build(size, s) {
+        checkSquare(size, s);
         const map = pixelMapFromMesh(mesh, size, s);
         if (s.brightness === 0) {
           // compensation off: keep only the mask, which the mesh carries separately
@@ -64,6 +79,7 @@ export async function loadMapSource(path: string, cacheDir: string | undefined =
     key,
     rig,
     build(size, s) {
+      checkSquare(size, s);
       const settings = {
         brightness: s.brightness ?? BAKE_DEFAULTS.brightness,
         brightnessFloor: s.brightnessFloor ?? BAKE_DEFAULTS.brightnessFloor,
