@@ -2,6 +2,7 @@
 import { createImageLike, fixedBilinearApplies, prepareBilinear, remap, type ImageBuffer, type PreparedBilinear, type RemapFilter, type RemapMap } from '@skyfold/warp-core';
 import { decodeImage, encodeImage, FrameError, type EncodeOptions } from '../io/image-codec.js';
 import { writeFileAtomic } from '../io/output-file.js';
+import { alphaUnused, fillAlpha } from './opaque.js';
 
 export interface WarpSettings {
   filter: RemapFilter;
@@ -35,6 +36,7 @@ export async function runFrameJob(job: FrameJob, map: RemapMap, s: WarpSettings,
       out = scratch.out = createImageLike(src, map.width, map.height);
     }
     remap(src, map, { filter: s.filter, out, prepared: preparedFor(src, map, s.filter, scratch) });
+    if (alphaUnused(src)) fillAlpha(out);
     writeFileAtomic(job.output, await encodeImage(out, { ...s.encode, format: job.format }), job.temp);
     return { id: job.id, ok: true, ms: performance.now() - t0 };
   } catch (e) {
