@@ -65,6 +65,24 @@ export function numberedPath(path: string, n: number, count: number): string {
   return `${path.slice(0, path.length - ext.length)}-${String(n).padStart(digits, '0')}${ext}`;
 }
 
+/**
+ * True when text drawn at projector pixel (x, y) would read mirrored on the dome: the local map from
+ * the projector frame (x right, y down) to the dome master (u right, v down, as seen from inside the
+ * dome; docs/design.md, fisheye convention) reverses orientation — a negative Jacobian determinant,
+ * as one reflection does. Where the light does not reach the dome, false.
+ */
+export function readsMirrored(tracer: Tracer, x: number, y: number): boolean {
+  const at = (px: number, py: number) => {
+    const h = tracer.pixel(px, py);
+    return h.kind === 'dome' || h.kind === 'below-horizon' ? h.fisheye : null;
+  };
+  const c = at(x, y);
+  const r = at(x + 1, y);
+  const d = at(x, y + 1);
+  if (!c || !r || !d) return false;
+  return (r[0] - c[0]) * (d[1] - c[1]) - (r[1] - c[1]) * (d[0] - c[0]) < 0;
+}
+
 export function registerPattern(program: Command): void {
   const pattern = program
     .command('pattern')
@@ -133,6 +151,7 @@ export function registerPattern(program: Command): void {
       },
     );
 
+  const given: ('pixel' | 'at')[] = [];
   pattern
     .command('markers')
     .description('numbered crosshairs at projector pixels, for noting where each lands on the dome (observations for `skyfold fit`)')
@@ -147,6 +166,8 @@ export function registerPattern(program: Command): void {
     .option('--each', 'one frame per marker instead of all in one')
     .option('--force', 'overwrite existing files')
     .option('--json', 'print a JSON summary')
+    .on('option:markers', () => given.push('pixel'))
+    .on('option:at', () => given.push('at'))
     .addHelpText('after', '\nExamples:\n  skyfold pattern markers --rig rig.yaml --markers 960,300 1400,500 -o markers.png\n  skyfold pattern markers --rig rig.yaml --at zenith --at rim@0 --at rim@90 --each -o marker.png')
     .action(
       async (opts: {
@@ -168,14 +189,20 @@ export function registerPattern(program: Command): void {
         const tracer = rig ? new Tracer(rig) : undefined;
         type Entry = { marker: Marker; source: string; predicted?: { azimuth: number; altitude: number } | null };
         const entries: Entry[] = [];
-        for (const [x, y] of opts.markers ?? []) {
-          if (!(x >= 0 && x <= W && y >= 0 && y <= H)) throw new UserError(`--markers: expected a pixel inside the ${W} × ${H} frame, got ${x},${y}`);
-          entries.push({ marker: { x, y }, source: 'pixel' });
-        }
-        for (const t of opts.at ?? []) {
-          const r = locateDirection(tracer!, t.azimuth * DEG, t.altitude * DEG);
-          if (!r.pixel) throw new UserError(`--at ${t.name}: the rig ${opts.rig} lights no pixel there (${r.reason})`);
-          entries.push({ marker: { x: Number(r.pixel[0].toFixed(1)), y: Number(r.pixel[1].toFixed(1)) }, source: t.name });
+        const pixels = [...(opts.markers ?? [])];
+        const targets = [...(opts.at ?? [])];
+        // numbered in the order given on the command line, --markers and --at interleaved as written
+        for (const kind of given) {
+          if (kind === 'pixel') {
+            const [x, y] = pixels.shift()!;
+            if (!(x >= 0 && x <= W && y >= 0 && y <= H)) throw new UserError(`--markers: expected a pixel inside the ${W} × ${H} frame, got ${x},${y}`);
+            entries.push({ marker: { x, y }, source: 'pixel' });
+          } else {
+            const t = targets.shift()!;
+            const r = locateDirection(tracer!, t.azimuth * DEG, t.altitude * DEG);
+            if (!r.pixel) throw new UserError(`--at ${t.name}: the rig ${opts.rig} lights no pixel there (${r.reason})`);
+            entries.push({ marker: { x: Number(r.pixel[0].toFixed(1)), y: Number(r.pixel[1].toFixed(1)) }, source: t.name });
+          }
         }
         if (entries.length === 0) throw new UserError('pattern markers: expected at least one --markers X,Y or --at TARGET, got none');
         entries.forEach((e, k) => {
@@ -183,6 +210,7 @@ export function registerPattern(program: Command): void {
           if (tracer) {
             const h = tracer.pixel(e.marker.x, e.marker.y);
             e.predicted = h.kind === 'mirror-miss' || h.kind === 'open' ? null : { azimuth: wrapDegrees(h.azimuth * RAD), altitude: h.altitude * RAD };
+            e.marker.mirrored = readsMirrored(tracer, e.marker.x, e.marker.y);
           }
         });
         const files: string[] = [];
@@ -201,7 +229,7 @@ export function registerPattern(program: Command): void {
             files,
             width: W,
             height: H,
-            markers: entries.map((e, k) => ({ number: k + 1, pixel: [e.marker.x, e.marker.y], from: e.source, predicted: e.predicted ?? null })),
+            markers: entries.map((e, k) => ({ number: k + 1, pixel: [e.marker.x, e.marker.y], from: e.source, predicted: e.predicted ?? null, ...(tracer ? { labelMirrored: e.marker.mirrored ?? false } : {}) })),
           });
           return;
         }

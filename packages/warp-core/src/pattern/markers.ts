@@ -11,6 +11,8 @@ export interface Marker {
   y: number;
   /** Default: the marker's 1-based number. */
   label?: string;
+  /** Draw the label mirrored left-right, for a marker whose light is reflected once more than it is turned (it then reads correctly on the dome). */
+  mirrored?: boolean;
 }
 
 export interface MarkerFrameOptions {
@@ -57,7 +59,28 @@ export function drawMarkerFrame(width: number, height: number, markers: readonly
     let top = y - arm * 0.6 - h - scale;
     if (left + w > width) left = x - arm * 0.6 - scale - w;
     if (top < 0) top = y + arm * 0.6 + scale;
-    drawText(img, label, left, top, scale, o.color);
+    if (m.mirrored) drawTextMirrored(img, label, Math.round(left), Math.round(top), scale, o.color);
+    else drawText(img, label, left, top, scale, o.color);
   });
   return img;
+}
+
+/** The label drawn as drawText draws it, then mirrored left-right about the middle of its box. */
+function drawTextMirrored(img: RgbImage, label: string, left: number, top: number, scale: number, color: Rgb): void {
+  const [w, h] = textSize(label, scale);
+  const off: Rgb = color[0] === 0 && color[1] === 0 && color[2] === 0 ? [255, 255, 255] : [0, 0, 0];
+  const glyphs = createRgbImage(Math.max(1, Math.ceil(w)), Math.max(1, Math.ceil(h)), off);
+  drawText(glyphs, label, 0, 0, scale, color);
+  for (let j = 0; j < glyphs.height; j++)
+    for (let i = 0; i < glyphs.width; i++) {
+      const s = 3 * (j * glyphs.width + i);
+      if (glyphs.data[s] === off[0] && glyphs.data[s + 1] === off[1] && glyphs.data[s + 2] === off[2]) continue;
+      const x = left + glyphs.width - 1 - i;
+      const y = top + j;
+      if (x < 0 || y < 0 || x >= img.width || y >= img.height) continue;
+      const t = 3 * (y * img.width + x);
+      img.data[t] = glyphs.data[s];
+      img.data[t + 1] = glyphs.data[s + 1];
+      img.data[t + 2] = glyphs.data[s + 2];
+    }
 }
