@@ -9,7 +9,7 @@ import { analyzeRig, planRig, type RigAnalysis } from '@skyfold/warp-core';
 import { starterRigText } from '../src/demo-rig.js';
 import { wordNotice } from '../src/messages.js';
 import { loadRig } from '../src/io/document-file.js';
-import { reportHtml } from '../src/pictures/report-page.js';
+import { reportHtml, setUpSection } from '../src/pictures/report-page.js';
 import { drawSafetyPlan } from '../src/pictures/safety-plan.js';
 import { drawSideView } from '../src/pictures/side-view.js';
 import type { Picture } from '../src/pictures/svg.js';
@@ -77,6 +77,23 @@ describe('a rig in feet reads in feet and inches', () => {
     expect(text).toContain('seated on chairs 3 ft 7 in to 4 ft 3 in');
     const metricText = reportHtml(metric.figures, [], { generator: 'test', rigFile: 'rig.yaml' });
     expect(metricText).toContain('seated on chairs 1.1 m to 1.3 m');
+  });
+});
+
+describe('the report page states the set-up it judges', () => {
+  it('shows dome, mirror, projector and content at the top, in the rig units, and begins every paragraph with a capital', () => {
+    const rig = loadRig(fixture('demo-rig-ft.yaml')).rig;
+    const a = analyzeRig(rig, { vertices: 1500, directions: { azimuths: 24, zenithSteps: 12 } });
+    const html = reportHtml(a.figures, [], { generator: 'skyfold test', rigFile: 'rig.yaml', rig });
+    const setUp = setUpSection(rig).replace(/<[^>]+>/g, ' ');
+    expect(html.indexOf('id="set-up"')).toBeLessThan(html.indexOf('class="cards"'));
+    expect(setUp).toContain('16 ft 4.85 in across');
+    expect(setUp).toContain('floor 1 ft 7.69 in below the springline');
+    expect(setUp).toContain('radius 11.81 in, cap half-angle 90°; centre at (0 in, -6 ft 4.77 in, 5.91 in)');
+    expect(setUp).toContain('1920 × 1200, throw ratio 1.6');
+    expect(setUp).toContain('180° fisheye');
+    expect(setUp.match(new RegExp(METRIC.source, 'g')) ?? []).toEqual([]);
+    for (const m of html.matchAll(/<p[^>]*>\s*(?:<[^>]+>\s*)*([^<\s])/g)) expect(m[1], m[0]).toMatch(/[A-Z0-9]/);
   });
 });
 

@@ -72,7 +72,7 @@ export function registerReport(program: Command): void {
         writeFileAtomic(jsonPath, JSON.stringify(analysis.figures, null, 2) + '\n');
         files.push(jsonPath);
         const htmlPath = join(opts.output, 'report.html');
-        writeFileAtomic(htmlPath, reportHtml(analysis.figures, htmlPics, { generator: `skyfold ${VERSION}`, rigFile: rigPath }));
+        writeFileAtomic(htmlPath, reportHtml(analysis.figures, htmlPics, { generator: `skyfold ${VERSION}`, rigFile: rigPath, rig }));
         files.push(htmlPath);
       } catch (e) {
         if (e instanceof UserError) throw e;

@@ -4,7 +4,7 @@
  * opens in any browser with nothing else installed.
  */
 import { lengthLabel } from './scales.js';
-import { describeArc, EYE_BANDS, formatLength, type LengthUnit, type ReportFigures } from '@skyfold/warp-core';
+import { azAltFromDirection, describeArc, EYE_BANDS, formatLength, RAD, type LengthUnit, type ReportFigures, type Rig } from '@skyfold/warp-core';
 
 export interface HtmlPicture {
   /** A data: URI, or the PNG file's path relative to the page. */
@@ -24,7 +24,47 @@ export function escapeHtml(s: string): string {
 const pct = (x: number | null, d = 1) => (x === null ? '–' : `${(x * 100).toFixed(d)}%`);
 const num = (x: number | null, d = 2) => (x === null ? '–' : x.toFixed(d));
 
-export function reportHtml(f: ReportFigures, pictures: readonly HtmlPicture[], meta: { generator: string; rigFile: string }): string {
+/** A text as a sentence: its first letter a capital. */
+function sentence(s: string): string {
+  return s.charAt(0).toUpperCase() + s.slice(1);
+}
+
+/** A point in the rig's units: "(0 in, -6 ft 4.77 in, 5.91 in)". */
+function pointText(p: readonly number[], units: LengthUnit): string {
+  return `(${p.map((x) => formatLength(x, units, 2)).join(', ')})`;
+}
+
+/** A direction as azimuth and elevation in degrees. */
+function aimText(d: readonly number[]): string {
+  const [az, alt] = azAltFromDirection([d[0], d[1], d[2]]);
+  return `azimuth ${((az * RAD + 360) % 360).toFixed(0)}°, ${(alt * RAD).toFixed(0)}° up`;
+}
+
+/** The set-up the report judges, at the top of the page, in the rig's units. */
+export function setUpSection(rig: Rig): string {
+  const u = rig.units;
+  const L = (m: number) => formatLength(m, u, 2);
+  const e = escapeHtml;
+  const { dome, mirror, projector: p, content } = rig;
+  const forward = [p.lookAt[0] - p.position[0], p.lookAt[1] - p.position[1], p.lookAt[2] - p.position[2]];
+  const rows: [string, string][] = [
+    ['Dome', `${L(2 * dome.radius)} across (radius ${L(dome.radius)})${dome.floor !== undefined ? `; floor ${L(dome.floor)} below the springline` : '; floor not given'}${dome.mesh ? `; as built: ${dome.mesh.source?.file ?? 'a triangle mesh'}` : ''}`],
+    ['Mirror', `radius ${L(mirror.radius)}, cap half-angle ${(mirror.capAngle * RAD).toFixed(0)}°; centre at ${pointText(mirror.center, u)}, facing ${aimText(mirror.axis)}`],
+    [
+      'Projector',
+      `${p.resolution[0]} × ${p.resolution[1]}, throw ratio ${p.throwRatio}, lens shift ${p.lensShift.join(', ')}; lens at ${pointText(p.position, u)}, aimed at ${aimText(forward)}, roll ${(p.roll * RAD).toFixed(1)}°` +
+        `${p.body ? `; body ${L(p.body.width)} × ${L(p.body.length)} × ${L(p.body.height)}` : '; body not given'}${p.aperture !== undefined ? `; entrance pupil ${L(p.aperture)}` : ''}`,
+    ],
+    ['Content', `${(content.fov * RAD).toFixed(0)}° fisheye, mapped for the eye at ${pointText(content.eye, u)}`],
+  ];
+  return `<h2 id="set-up">The set-up</h2>
+<table class="set-up">
+${rows.map(([k, v]) => `<tr><th scope="row">${e(k)}</th><td>${e(v)}</td></tr>`).join('\n')}
+</table>
+<p class="note">Frame: origin at the centre of the springline circle, +z up, +y toward the front (azimuth 0), +x to the right.</p>`;
+}
+
+export function reportHtml(f: ReportFigures, pictures: readonly HtmlPicture[], meta: { generator: string; rigFile: string; rig?: Rig }): string {
   const units = f.rig.units as LengthUnit;
   const L = (m: number | null) => (m === null ? '–' : formatLength(m, units, 2));
   const e = escapeHtml;
@@ -88,7 +128,8 @@ footer { color: var(--faint); font-size: 13px; margin-top: 40px; }
 <body>
 <main>
 <h1>${e(f.rig.name ?? 'Projector, mirror and dome')}</h1>
-<p class="sub">skyfold report for <code>${e(meta.rigFile)}</code> · ${e(meta.generator)}</p>
+<p class="sub">Report for <code>${e(meta.rigFile)}</code> by ${e(meta.generator)}</p>
+${meta.rig ? setUpSection(meta.rig) : ''}
 
 <div class="cards">
 ${card('Dome lit', pct(f.coverage.fraction), `of the content's dome solid angle (check: ${pct(f.coverage.fractionByInverse)} via the inverse)`)}
@@ -156,7 +197,7 @@ ${spillPart('Past the mirror', sp.pastMirror)}
 ${spillPart('Below the springline', sp.belowHorizon)}
 ${row('Outside the content', pct(sp.outsideContent.share))}
 </table>
-<p class="note">${e(sp.note)}. Heights are measured from the ${e(sp.heightsFrom)}.</p>
+<p class="note">${e(sentence(sp.note))}. Heights are measured from the ${e(sp.heightsFrom)}.</p>
 
 <h2>Focus</h2>
 <table>
