@@ -190,6 +190,13 @@ export function drawDomePattern(options: Partial<DomePatternOptions> = {}): RgbI
         fillTriangle(img, t2, c1, c2, color);
       }
     }
+    // azimuth numbers every 30° between the letters, on the letters' circle, as large as the letters
+    const letterRho = rimRho - size * 1.9;
+    const ls = Math.max(1, Math.round(size / 6));
+    for (let deg = 30; deg < 360; deg += 30) {
+      if (deg % 90 === 0) continue;
+      drawTextCentred(img, String(deg), c + letterRho * Math.sin(deg * DEG), c + letterRho * Math.cos(deg * DEG), ls, PATTERN_COLORS.side, PATTERN_COLORS.background);
+    }
   }
 
   const dotR = Math.max(2, N / 256);
