@@ -17,6 +17,8 @@ export interface SimulateOptions {
    * area A_max, so a fully compensated warp shows its content unchanged); 'none': geometry only.
    */
   brightness: 'physical' | 'none';
+  /** Called after each row of the dome master with the rows done and the rows in all (for progress). */
+  onRow?: (done: number, total: number) => void;
 }
 
 /** The map from the projector frame (source, pixel units) to an N × N dome master of what is seen. */
@@ -42,6 +44,7 @@ export function simulationMap(rig: Rig, size: number, options: SimulateOptions =
       y[k] = r.pixel[1];
       gain[k] = 1;
     }
+    options.onRow?.(j + 1, size);
   }
   if (options.brightness === 'physical') {
     const areaMax = referenceArea(tracer);

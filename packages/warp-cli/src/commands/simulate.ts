@@ -8,6 +8,7 @@ import { UserError } from '../errors.js';
 import { printJson } from '../format.js';
 import { parsePositiveInt } from '../options.js';
 import { writeOut } from '../io/run-context.js';
+import { WorkProgress } from '../io/work-progress.js';
 
 export function registerSimulate(program: Command): void {
   program
@@ -33,7 +34,9 @@ export function registerSimulate(program: Command): void {
       }
       const [W, H] = rig.projector.resolution;
       if (frame.width !== W || frame.height !== H) throw new UserError(`${warpedPath}: is ${frame.width}x${frame.height}; the rig's projector is ${W}x${H}`);
-      const map = simulationMap(rig, opts.size, { brightness: opts.brightness });
+      const progress = new WorkProgress('simulate', !opts.json);
+      const map = simulationMap(rig, opts.size, { brightness: opts.brightness, onRow: (done, total) => progress.update(done, total) });
+      progress.finish();
       const seen = remap(frame, map, { filter: 'bilinear' });
       writeOutputFile(opts.output, await encodeImage(seen, { format }));
       let covered = 0;
