@@ -81,7 +81,7 @@ describe('a rig in feet reads in feet and inches', () => {
 });
 
 describe('the report page states the set-up it judges', () => {
-  it('shows dome, mirror, projector and content at the top, in the rig units, and begins every paragraph with a capital', () => {
+  it('shows the dome, the mirror, the projector and the content at the top, in the rig units, and begins every paragraph with a capital', () => {
     const rig = loadRig(fixture('demo-rig-ft.yaml')).rig;
     const a = analyzeRig(rig, { vertices: 1500, directions: { azimuths: 24, zenithSteps: 12 } });
     const html = reportHtml(a.figures, [], { generator: 'skyfold test', rigFile: 'rig.yaml', rig });

@@ -45,7 +45,9 @@ export function setUpSection(rig: Rig): string {
   const u = rig.units;
   const L = (m: number) => formatLength(m, u, 2);
   const e = escapeHtml;
-  const { dome, mirror, projector: p, content } = rig;
+  const { projector: p, content } = rig;
+  const dome = rig.dome;
+  const mirror = rig.mirror;
   const forward = [p.lookAt[0] - p.position[0], p.lookAt[1] - p.position[1], p.lookAt[2] - p.position[2]];
   const rows: [string, string][] = [
     ['Dome', `${L(2 * dome.radius)} across (radius ${L(dome.radius)})${dome.floor !== undefined ? `; floor ${L(dome.floor)} below the springline` : '; floor not given'}${dome.mesh ? `; as built: ${dome.mesh.source?.file ?? 'a triangle mesh'}` : ''}`],
