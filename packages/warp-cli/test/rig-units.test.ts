@@ -68,6 +68,12 @@ describe('a rig in feet reads in feet and inches', () => {
     // the demo's lens sits at floor-seated eye height, so the beam crosses that band (report.test.ts)
     expect(t.some((s) => /^beam: .* ft .* from the lens$/.test(s))).toBe(true);
     expect(svgTexts(pics.metric.plan.svg).filter((s) => IMPERIAL.test(s))).toEqual([]);
+    // distinct zones: the beam past the mirror apart from the beam to it, and the picture's arc on the wall
+    expect(t.some((s) => /^past the mirror: .* from the lens$/.test(s))).toBe(true);
+    expect(t.some((s) => /^on the wall: (all around|azimuths \d+° to \d+°)$/.test(s))).toBe(true);
+    const z = feet.safetyZones!;
+    expect(z.pastMirror[0].some((v) => v === 1)).toBe(true);
+    expect(z.pastMirror[0].some((v, k) => v === 1 && z.direct[0][k] === 0)).toBe(true);
   });
 
   it('writes the HTML page with no metric length for a rig in feet', () => {

@@ -94,7 +94,11 @@ export interface SafetyFigures {
 export interface SafetyZones {
   n: number;
   extent: number;
+  /** The beam from the lens to the mirror. */
   direct: Uint8Array[];
+  /** The part of the beam that misses the mirror and goes on. */
+  pastMirror: Uint8Array[];
+  /** Lit, reflected light (the picture). */
   reflected: Uint8Array[];
 }
 
@@ -197,6 +201,7 @@ function markSegment(grid: PlanGrid, a: ReadonlyVec3, b: ReadonlyVec3, t0: numbe
 /** Where the direct beam (lens to mirror, and past a missed mirror) runs between heights lo and hi. */
 interface BeamCrossings {
   direct: PlanGrid;
+  past: PlanGrid;
   /** Horizontal distances from the lens, and plan-view x and y, of the beam to the mirror in the band. */
   distance: Span;
   x: Span;
@@ -209,7 +214,7 @@ interface BeamCrossings {
 
 function beamCrossings(s: FrameSample, landings: ReturnType<typeof strayLandings>, lo: number, hi: number): BeamCrossings {
   const P = s.tracer.frame.origin;
-  const c: BeamCrossings = { direct: planGrid(s.tracer.rig.dome.radius), distance: new Span(), x: new Span(), y: new Span(), pastMirror: new Span(), wallAzimuths: [] };
+  const c: BeamCrossings = { direct: planGrid(s.tracer.rig.dome.radius), past: planGrid(s.tracer.rig.dome.radius), distance: new Span(), x: new Span(), y: new Span(), pastMirror: new Span(), wallAzimuths: [] };
   const visitPast = (x: number, y: number) => c.pastMirror.add(Math.hypot(x - P[0], y - P[1]));
   const visitDirect = (x: number, y: number) => {
     c.distance.add(Math.hypot(x - P[0], y - P[1]));
@@ -225,7 +230,7 @@ function beamCrossings(s: FrameSample, landings: ReturnType<typeof strayLandings
     if (fate === Fate.MirrorMiss) {
       if (!l) continue;
       const t = clipZ(P, l.point, lo, hi);
-      if (t) markSegment(c.direct, P, l.point, t[0], t[1], visitPast);
+      if (t) markSegment(c.past, P, l.point, t[0], t[1], visitPast);
       continue;
     }
     const X: Vec3 = [s.mirrorPoint[3 * k], s.mirrorPoint[3 * k + 1], s.mirrorPoint[3 * k + 2]];
@@ -340,7 +345,7 @@ export function safetyFigures(s: FrameSample): { figures: SafetyFigures; zones: 
   const landings = strayLandings(s);
   const bands: BandZone[] = [];
   const findings: Finding[] = [];
-  const zones: SafetyZones = { n: PLAN_CELLS, extent: rig.dome.radius, direct: [], reflected: [] };
+  const zones: SafetyZones = { n: PLAN_CELLS, extent: rig.dome.radius, direct: [], pastMirror: [], reflected: [] };
   for (const band of EYE_BANDS) {
     // band heights from the springline, where the trace's z is measured
     const lo = band.from - floor;
@@ -351,6 +356,7 @@ export function safetyFigures(s: FrameSample): { figures: SafetyFigures; zones: 
     bands.push(zone);
     findings.push(...bandFindings(zone, band, L));
     zones.direct.push(beam.direct.cells);
+    zones.pastMirror.push(beam.past.cells);
     zones.reflected.push(light.reflected.cells);
   }
   const lensH = s.tracer.frame.origin[2] + floor;
