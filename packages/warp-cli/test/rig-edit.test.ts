@@ -100,3 +100,13 @@ describe('skyfold fit writes into the user rig file', () => {
     back.mirror.center.forEach((c, i) => expect(Math.abs(c - result.rig.mirror.center[i])).toBeLessThan(0.006 * IN)); // 0.01 in printed
   });
 });
+
+describe('a rig read from a .glb', () => {
+  it('has no text of its own: fit and plan write the rig afresh', async () => {
+    const { rigDocumentText } = await import('../src/io/rig-edit.js');
+    const rig = rigFromDocument(parse(FEET));
+    const back = rigFromDocument(parse(rigDocumentText('baked.glb', rig)));
+    expect(back.dome.radius).toBeCloseTo(rig.dome.radius, 6);
+    back.projector.position.forEach((c, i) => expect(c).toBeCloseTo(rig.projector.position[i], 6));
+  });
+});

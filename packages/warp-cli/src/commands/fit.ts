@@ -22,8 +22,8 @@ import {
   type MeasurementSet,
   type Rig,
 } from '@skyfold/warp-core';
-import { loadRig, readDocumentFile, readTextFile } from '../io/document-file.js';
-import { editRigDocument, keepCommentColumns } from '../io/rig-edit.js';
+import { loadRig, readDocumentFile } from '../io/document-file.js';
+import { editRigDocument, keepCommentColumns, rigDocumentText } from '../io/rig-edit.js';
 import { refuseToOverwrite, writeOutputFile } from '../io/output-file.js';
 import { UserError } from '../errors.js';
 import { fixed, printJson, table } from '../format.js';
@@ -200,7 +200,7 @@ export function registerFit(program: Command): void {
         throw e;
       }
       const units = set.units;
-      if (opts.output) writeOutputFile(opts.output, fittedRigText(result, rig, readTextFile(rigPath, 'rig file'), rigPath, measurementsPath, units));
+      if (opts.output) writeOutputFile(opts.output, fittedRigText(result, rig, rigDocumentText(rigPath, rig), rigPath, measurementsPath, units));
       const ru = rig.units;
       if (opts.json) {
         const parameters: Record<string, unknown> = {};

@@ -3,8 +3,8 @@ import { basename, dirname, extname, join } from 'node:path';
 import { Option, type Command } from 'commander';
 import { parseDocument } from 'yaml';
 import { formatLength, PLAN_DEFAULTS, PLAN_OBJECTIVES, planRig, RigError, rigToDocument, type PlanCandidate, type PlanObjective, type PlanResult, type Rig } from '@skyfold/warp-core';
-import { readRig, readTextFile } from '../io/document-file.js';
-import { editRigDocument, keepCommentColumns } from '../io/rig-edit.js';
+import { readRig } from '../io/document-file.js';
+import { editRigDocument, keepCommentColumns, rigDocumentText } from '../io/rig-edit.js';
 import { writeOutputFile } from '../io/output-file.js';
 import { UserError } from '../errors.js';
 import { printJson, table } from '../format.js';
@@ -97,7 +97,7 @@ export function registerPlan(program: Command): void {
       const best = result.best[0];
       let wrote: string | null = null;
       if (best) {
-        writeOutputFile(out, plannedRigText(result, rig, readTextFile(rigPath, 'rig file'), rigPath));
+        writeOutputFile(out, plannedRigText(result, rig, rigDocumentText(rigPath, rig), rigPath));
         wrote = out;
       }
       if (opts.json) {

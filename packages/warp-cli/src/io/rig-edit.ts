@@ -5,8 +5,9 @@
  * diameter, a cap stays a cap, a string with units ("5 ft 3 in") stays a string in the document's
  * units, a bare number stays a bare number in the document's units.
  */
-import { isScalar, isSeq, type Document, type Scalar } from 'yaml';
-import { formatLength, fromMetres, parseLengthString, RAD, toMetres, type LengthUnit, type Rig } from '@skyfold/warp-core';
+import { isScalar, isSeq, stringify, type Document, type Scalar } from 'yaml';
+import { readTextFile } from './document-file.js';
+import { formatLength, fromMetres, parseLengthString, RAD, rigToDocument, toMetres, type LengthUnit, type Rig } from '@skyfold/warp-core';
 
 type Path = readonly (string | number)[];
 
@@ -192,4 +193,9 @@ export function keepCommentColumns(original: string, edited: string): string {
       return col > head.length ? `${head.padEnd(col)}#${m[3]}` : line;
     })
     .join('\n');
+}
+
+/** The text of the rig document to edit: the user's own file, or for a rig read from a .glb (which has no text of its own) the rig written afresh. */
+export function rigDocumentText(path: string, rig: Rig): string {
+  return path.toLowerCase().endsWith('.glb') ? stringify(rigToDocument(rig), { flow: false }) : readTextFile(path, 'rig file');
 }
