@@ -45,6 +45,8 @@ export function parseDirection(text: string, what = 'AZ,ALT (azimuth and altitud
 export interface SizeRule {
   /** The smallest width and height. */
   min: number;
+  /** The largest width and height, and why (for the message), if there is a bound. */
+  max?: { value: number; why: string };
   /** The separators accepted between the two numbers besides "x". */
   separators?: string;
   /** The message's description, e.g. 'COLSxROWS with at least 2 each (e.g. 321x201)'. */
@@ -59,7 +61,9 @@ export function parseSize(rule: SizeRule): (text: string) => [number, number] {
     const m = re.exec(text);
     const w = m ? Number(m[1]) : NaN;
     const h = m ? Number(m[2]) : NaN;
-    if (!(w >= rule.min && h >= rule.min)) throw new InvalidArgumentError(`expected ${rule.what}, got "${text}"`);
+    const shown = text.length > 40 ? text.slice(0, 39) + '…' : text;
+    if (!(w >= rule.min && h >= rule.min)) throw new InvalidArgumentError(`expected ${rule.what}, got "${shown}"`);
+    if (rule.max && (w > rule.max.value || h > rule.max.value)) throw new InvalidArgumentError(`expected at most ${rule.max.value} a side (${rule.max.why}), got "${shown}"`);
     return [w, h];
   };
 }

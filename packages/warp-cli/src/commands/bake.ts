@@ -1,6 +1,6 @@
 /** `skyfold bake`: the warp mesh, with its measured accuracy, in open formats. */
 import { Option, type Command } from 'commander';
-import { BAKE_DEFAULTS, bakeMesh, fillLayoutFromRig, pixelFields, rigToDocument, type BakeOptions, type BakeResult, type LengthUnit } from '@skyfold/warp-core';
+import { BAKE_DEFAULTS, bakeMesh, fillLayoutFromRig, pixelFields, RigError, rigToDocument, type BakeOptions, type BakeResult, type LengthUnit } from '@skyfold/warp-core';
 import { readRig } from '../io/document-file.js';
 import { writeOutputFile } from '../io/output-file.js';
 import { UserError } from '../errors.js';
@@ -11,7 +11,8 @@ import { VERSION } from '../version.js';
 import { writeOut } from '../io/run-context.js';
 import { wordNotice } from '../messages.js';
 
-const parseGrid = parseSize({ min: 2, what: 'COLSxROWS with at least 2 each (e.g. 321x201)' });
+// the accuracy check traces 25 points per cell five times over: finer grids run out of memory
+const parseGrid = parseSize({ min: 2, max: { value: BAKE_DEFAULTS.maxCols, why: 'the finest grid bake chooses itself' }, what: 'COLSxROWS with at least 2 each (e.g. 321x201)' });
 
 /** The command's options: the core's bake settings plus where and how to write. */
 export interface BakeCliOptions extends Pick<BakeOptions, 'tolerance' | 'masterSize' | 'brightness' | 'brightnessFloor' | 'feather'> {
@@ -89,7 +90,13 @@ export function registerBake(program: Command): void {
         feather: opts.feather,
       };
       const meta = { generator: `skyfold ${VERSION}`, rig: rigToDocument(rig, 'm'), bake: settings as Record<string, unknown> };
-      const result = bakeMesh(rig, settings, meta);
+      let result: BakeResult;
+      try {
+        result = bakeMesh(rig, settings, meta);
+      } catch (e) {
+        if (e instanceof RigError) throw new UserError(`${rigPath}: nothing to bake: ${e.message}`);
+        throw e;
+      }
       meta.bake = { ...settings, grid: [result.mesh.cols, result.mesh.rows], accuracy: result.accuracy, edge: result.edge, areaMax: result.areaMax };
       const perPixel = opts.alphaResolution === 'full' && targets.some((t) => t.format === 'mpcdi' || t.format === 'png');
       const pixels = perPixel ? pixelFields(rig, settings) : undefined;

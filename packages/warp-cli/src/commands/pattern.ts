@@ -45,7 +45,7 @@ function parseDot(text: string): PatternDot {
   return { azimuth: wrapDegrees(az) * DEG, altitude: alt * DEG };
 }
 
-const parseResolution = parseSize({ min: 1, separators: ',', what: 'WIDTHxHEIGHT in pixels, e.g. 1920x1200' });
+const parseResolution = parseSize({ min: 1, max: { value: 8192, why: 'an 8K projector or dome master' }, separators: ',', what: 'WIDTHxHEIGHT in pixels, e.g. 1920x1200' });
 
 type Target = { name: string; azimuth: number; altitude: number };
 

@@ -15,6 +15,7 @@
  */
 import { Document, Extension, NodeIO, type ReaderContext, type WriterContext } from '@gltf-transform/core';
 import type { WarpMesh } from '@skyfold/warp-core';
+import { checkMeshSize, checkMeshValues } from './check.js';
 
 /** Root-extras key holding the grid description; the rest of extras is mesh.meta. */
 export const GLB_GRID_KEY = 'skyfoldMesh';
@@ -105,7 +106,8 @@ export async function readGlb(bytes: Uint8Array): Promise<WarpMesh> {
   try {
     doc = await createIO().readBinary(bytes);
   } catch (err) {
-    throw new Error(`Expected a glTF binary (.glb) warp mesh but could not read it: ${(err as Error).message}`);
+    const why = String((err as Error)?.message ?? err).split('\n')[0];
+    throw new Error(`Expected a glTF binary (.glb) warp mesh but could not read it: ${why.length > 120 ? why.slice(0, 119) + '…' : why}`);
   }
   const extras = { ...(doc.getRoot().getExtras() as Record<string, unknown>) };
   const grid = extras[GLB_GRID_KEY] as { version?: unknown; cols?: unknown; rows?: unknown; width?: unknown; height?: unknown } | undefined;
@@ -115,6 +117,7 @@ export async function readGlb(bytes: Uint8Array): Promise<WarpMesh> {
   if (!isInt2(cols) || !isInt2(rows) || !isPositive(width) || !isPositive(height)) {
     throw new Error(`Expected extras.${GLB_GRID_KEY} with integer cols, rows ≥ 2 and positive width, height`);
   }
+  checkMeshSize(cols, rows, width, height);
   delete extras[GLB_GRID_KEY];
 
   const primitives = doc.getRoot().listMeshes().flatMap((m) => m.listPrimitives());
@@ -145,7 +148,7 @@ export async function readGlb(bytes: Uint8Array): Promise<WarpMesh> {
       mesh.mask[i] = color[i * 4 + 3];
     }
   }
-  return mesh;
+  return checkMeshValues(mesh);
 }
 
 function isInt2(x: unknown): x is number {

@@ -1,5 +1,6 @@
 /** Warp mesh files: one module per format, and a format-by-name front door for the CLI. */
 import type { PixelFields, WarpMesh } from '@skyfold/warp-core';
+import { checkMeshValues } from './check.js';
 import { readCsv, writeCsv } from './csv.js';
 import { readGlb, writeGlb } from './glb.js';
 import { readMpcdi, writeMpcdi, type MpcdiOptions } from './mpcdi.js';
@@ -50,6 +51,10 @@ export async function encodeMesh(mesh: WarpMesh, format: MeshFormat, options: En
  * brightness and mask only as sampled from its alpha map.
  */
 export async function decodeMesh(bytes: Uint8Array, format: MeshFormat): Promise<WarpMesh> {
+  return checkMeshValues(await decodeAny(bytes, format));
+}
+
+async function decodeAny(bytes: Uint8Array, format: MeshFormat): Promise<WarpMesh> {
   switch (format) {
     case 'glb':
       return readGlb(bytes);

@@ -40,6 +40,7 @@ import { strToU8, strFromU8, unzipSync, zipSync } from 'fflate';
 import sharp from 'sharp';
 import { fillLayoutFromMesh, type FillLayoutGrid, type PixelFields, type WarpMesh } from '@skyfold/warp-core';
 import { decodePfm, encodePfm } from './pfm.js';
+import { checkMeshSize, checkMeshValues } from './check.js';
 import { encodePng } from '../io/image-codec.js';
 
 export interface MpcdiOptions {
@@ -172,27 +173,39 @@ export interface MpcdiContents {
 /** Unzips an MPCDI package written by {@link writeMpcdi} and reads back its warp and alpha map. */
 export async function readMpcdi(bytes: Uint8Array): Promise<MpcdiContents> {
   let entries: Record<string, Uint8Array>;
+  let inflated = 0;
   try {
-    entries = unzipSync(bytes);
+    // the sizes the ZIP declares bound what is inflated (fflate writes no more than the declared size)
+    entries = unzipSync(bytes, {
+      filter: (f) => {
+        inflated += f.originalSize;
+        if (f.originalSize > MAX_MPCDI_ENTRY || inflated > MAX_MPCDI_INFLATED) {
+          throw new Error(`the entry ${shortName(f.name)} inflates to ${(f.originalSize / 2 ** 20).toFixed(0)} MB, beyond the ${MAX_MPCDI_ENTRY / 2 ** 20} MB a warp or alpha map of an 8K projector needs (${MAX_MPCDI_INFLATED / 2 ** 20} MB in all)`);
+        }
+        return true;
+      },
+    });
   } catch (err) {
     throw new Error(`Expected an MPCDI package (a ZIP) but could not unzip it: ${(err as Error).message}`);
   }
   const xmlBytes = entries['mpcdi.xml'];
   if (!xmlBytes) throw new Error('Expected mpcdi.xml in the MPCDI package but found none');
   const xml = strFromU8(xmlBytes);
-  const profile = /<MPCDI\b[^>]*\bprofile="([^"]*)"/.exec(xml)?.[1];
-  if (profile !== '2d') throw new Error(`Expected MPCDI profile "2d" but received ${profile === undefined ? 'none' : `"${profile}"`}`);
-  const region = /<region\b([^>]*)>/.exec(xml)?.[1] ?? '';
-  const xRes = Number(/\bxResolution="([^"]*)"/.exec(region)?.[1]);
-  const yRes = Number(/\byResolution="([^"]*)"/.exec(region)?.[1]);
-  const warpPath = /<geometryWarpFile>[\s\S]*?<path>([^<]*)<\/path>/.exec(xml)?.[1]?.trim();
-  const alphaPath = /<alphaMap>[\s\S]*?<path>([^<]*)<\/path>/.exec(xml)?.[1]?.trim();
-  if (!warpPath || !entries[warpPath]) throw new Error(`Expected the geometry warp file ${warpPath ?? '(no path)'} in the MPCDI package`);
-  if (!alphaPath || !entries[alphaPath]) throw new Error(`Expected the alpha map ${alphaPath ?? '(no path)'} in the MPCDI package`);
+  const facts = scanMpcdiXml(xml);
+  const profile = facts.root?.profile;
+  if (profile !== '2d') throw new Error(`Expected MPCDI profile "2d" but received ${profile === undefined ? 'none' : `"${shortName(profile)}"`}`);
+  const xRes = Number(facts.region?.xResolution);
+  const yRes = Number(facts.region?.yResolution);
+  const { warpPath, alphaPath } = facts;
+  if (!warpPath || !entries[warpPath]) throw new Error(`Expected the geometry warp file ${shortName(warpPath ?? '(no path)')} in the MPCDI package`);
+  if (!alphaPath || !entries[alphaPath]) throw new Error(`Expected the alpha map ${shortName(alphaPath ?? '(no path)')} in the MPCDI package`);
   if (!(xRes > 0) || !(yRes > 0)) throw new Error('Expected region xResolution and yResolution in mpcdi.xml');
+  checkMeshSize(2, 2, xRes, yRes);
+  if (!Number.isInteger(xRes) || !Number.isInteger(yRes)) throw new Error(`Expected whole-pixel region xResolution and yResolution but received ${shortName(String(facts.region?.xResolution))}, ${shortName(String(facts.region?.yResolution))}`);
 
   const pfm = decodePfm(entries[warpPath], { rowOrder: 'top-down' });
   if (pfm.channels !== 3) throw new Error('Expected a 3-channel geometry warp PFM');
+  checkMeshSize(pfm.width, pfm.height, xRes, yRes);
   const wide = (await sharp(entries[alphaPath]).metadata()).depth === 'ushort';
   // 16-bit needs an explicit 16-bit colourspace, or sharp returns 8-bit sRGB values widened to ushort.
   const alphaImage = wide ? sharp(entries[alphaPath]).toColorspace('grey16').raw({ depth: 'ushort' }) : sharp(entries[alphaPath]).toColorspace('b-w').raw();
@@ -204,7 +217,7 @@ export async function readMpcdi(bytes: Uint8Array): Promise<MpcdiContents> {
   const alpha = { width: info.width, height: info.height, data: Float32Array.from(samples, (s) => s / scale) };
 
   const warp: FillLayoutGrid = { cols: pfm.width, rows: pfm.height, data: pfm.data };
-  const mesh = cornerMesh(warp, xRes, yRes, alpha);
+  const mesh = checkMeshValues(cornerMesh(warp, xRes, yRes, alpha));
   return { mesh, warp, xml, profile, warpPath, alphaPath, alpha };
 }
 
@@ -247,6 +260,77 @@ function cornerMesh(warp: FillLayoutGrid, xRes: number, yRes: number, alpha: { w
     }
   }
   return mesh;
+}
+
+/** Largest inflated entry and package: an 8K projector's 16-bit alpha map is 128 MB raw, but PNG; a 1025-column warp PFM is 8 MB. */
+const MAX_MPCDI_ENTRY = 64 * 2 ** 20;
+const MAX_MPCDI_INFLATED = 128 * 2 ** 20;
+
+function shortName(s: string): string {
+  return JSON.stringify(s.length > 40 ? s.slice(0, 39) + '…' : s);
+}
+
+interface MpcdiFacts {
+  root?: Record<string, string>;
+  region?: Record<string, string>;
+  warpPath?: string;
+  alphaPath?: string;
+}
+
+/**
+ * The few things the reader needs from mpcdi.xml, in one pass over the text (each tag is found by
+ * indexOf from where the last one ended, so the work is linear however many tags there are): the root's
+ * attributes, the first region's, and the first <path> inside <geometryWarpFile> and <alphaMap>.
+ */
+function scanMpcdiXml(xml: string): MpcdiFacts {
+  const facts: MpcdiFacts = {};
+  const stack: string[] = [];
+  let text = '';
+  let i = 0;
+  for (;;) {
+    const lt = xml.indexOf('<', i);
+    if (lt < 0) break;
+    if (stack[stack.length - 1] === 'path') text += xml.slice(i, lt);
+    const skipTo = (close: string) => {
+      const e = xml.indexOf(close, lt);
+      if (e < 0) throw new Error('Expected well-formed mpcdi.xml but a comment or declaration never ends');
+      return e + close.length;
+    };
+    if (xml.startsWith('<!--', lt)) i = skipTo('-->');
+    else if (xml.startsWith('<?', lt)) i = skipTo('?>');
+    else if (xml.startsWith('<!', lt)) i = skipTo('>');
+    else {
+      const gt = xml.indexOf('>', lt);
+      if (gt < 0) throw new Error('Expected well-formed mpcdi.xml but a tag never ends');
+      // a tag is a name and a few attributes; a longer one is no MPCDI (and keeps the attribute scan linear)
+      if (gt - lt > 4096) throw new Error('Expected mpcdi.xml tags of a few attributes but found one over 4096 characters');
+      const body = xml.slice(lt + 1, gt);
+      i = gt + 1;
+      if (body.startsWith('/')) {
+        const name = body.slice(1).trim();
+        if (stack[stack.length - 1] !== name) throw new Error(`Expected well-formed mpcdi.xml but </${shortName(name).slice(1, -1)}> closes nothing open`);
+        stack.pop();
+        if (name === 'path') {
+          const parent = stack[stack.length - 1];
+          if (parent === 'geometryWarpFile' && facts.warpPath === undefined) facts.warpPath = text.trim();
+          if (parent === 'alphaMap' && facts.alphaPath === undefined) facts.alphaPath = text.trim();
+          text = '';
+        }
+        continue;
+      }
+      const name = /^[^\s/>]+/.exec(body)?.[0] ?? '';
+      const attrs: Record<string, string> = {};
+      for (const m of body.matchAll(/([A-Za-z_:][\w:.-]*)\s*=\s*(?:"([^"]*)"|'([^']*)')/g)) attrs[m[1]] = m[2] ?? m[3];
+      if (name === 'MPCDI' && facts.root === undefined) facts.root = attrs;
+      if (name === 'region' && facts.region === undefined) facts.region = attrs;
+      if (!body.endsWith('/')) {
+        stack.push(name);
+        if (stack.length > 64) throw new Error('Expected mpcdi.xml nested at most 64 deep');
+        if (name === 'path') text = '';
+      }
+    }
+  }
+  return facts;
 }
 
 function xmlEscape(s: string): string {

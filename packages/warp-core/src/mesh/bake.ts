@@ -4,7 +4,7 @@
  * its cells puts content from where the exact trace puts it.
  */
 import { DEG } from '../math.js';
-import type { Rig } from '../rig/model.js';
+import { RigError, type Rig } from '../rig/model.js';
 import { allocGridOutput, Tracer, landsOnDome } from '../trace.js';
 import { edgeRamp, edgeSegments, angularScaleAt, litTest, measureEdgePlacement, type EdgePlacement, type LitTest } from './edge.js';
 import { brightnessFactor, contentVisible, domeAreaOnGrid, fillUnlit, quantile, referenceArea } from './field.js';
@@ -279,10 +279,14 @@ export function bakeMesh(rig: Rig, options: Partial<BakeOptions> = {}, meta: Rec
   let accuracy: MeshAccuracy;
   for (let iter = 0; ; iter++) {
     mesh = buildMesh(tracer, cols, rows, o, areaMax, meta, litOf);
+    if (iter === 0 && !mesh.mask.some((m) => m > 0) && !litOnCheckGrid(tracer, W, H)) {
+      // a mesh of nothing but mask 0 cannot be measured and no player can use it: the rig is wrong
+      throw new RigError('projector', "no vertex of the mesh shows content: the projector's frame misses the mirror, or lands outside content.fov (check projector.lookAt, projector.lensShift and mirror.center)");
+    }
     accuracy = measureAccuracy(tracer, mesh, o.masterSize, o.samplesPerCell, o.tolerance);
     // both the bilinear cell and the two triangles a GPU draws must meet the tolerance
     const p99 = Math.max(accuracy.errorP99Projector, accuracy.triangles.errorP99Projector);
-    if (o.grid || p99 <= o.tolerance || cols >= limit || iter >= 8) break;
+    if (o.grid || !Number.isFinite(p99) || p99 <= o.tolerance || cols >= limit || iter >= 8) break;
     const factor = Math.sqrt(p99 / o.tolerance) * 1.15;
     const next = Math.min(limit, Math.max(cols + 16, Math.ceil((cols - 1) * Math.min(factor, 4)) + 1));
     cols = next;
@@ -300,6 +304,9 @@ export function bakeMesh(rig: Rig, options: Partial<BakeOptions> = {}, meta: Rec
       if (mesh.brightness[k] > bMax) bMax = mesh.brightness[k];
     }
   }
+  if (accuracy.cells === 0) {
+    throw new RigError('projector', `the lit part of the frame is too small to measure: no cell of the ${mesh.cols} x ${mesh.rows} grid is lit at all four corners (give a finer grid, or check the rig)`);
+  }
   const notes: Notice[] = [];
   const worstP99 = Math.max(accuracy.errorP99Projector, accuracy.triangles.errorP99Projector);
   if (worstP99 > o.tolerance) {
@@ -316,6 +323,15 @@ export function bakeMesh(rig: Rig, options: Partial<BakeOptions> = {}, meta: Rec
   }
   const edge = measureEdgePlacement(litOf, mesh);
   return { mesh, accuracy, edge, litFraction: lit / n, brightnessMin: lit ? bMin : 0, brightnessMax: lit ? bMax : 0, areaMax, notes, options: o };
+}
+
+/** True when some pixel of a 257-across check grid shows content: a coarse grid may straddle a small lit area. */
+function litOnCheckGrid(tracer: Tracer, W: number, H: number): boolean {
+  const cols = Math.min(257, W + 1);
+  const rows = Math.max(2, Math.min(H + 1, Math.round(((cols - 1) * H) / W) + 1));
+  const g = tracer.grid(vertexCoords(cols, W), vertexCoords(rows, H), allocGridOutput(cols, rows));
+  for (let k = 0; k < cols * rows; k++) if (contentVisible(tracer, g.u[k], g.v[k], g.kind[k])) return true;
+  return false;
 }
 
 function fmt(x: number): string {

@@ -11,6 +11,10 @@ type Doc = Record<string, unknown>;
 
 /** Lengths beyond this are typing mistakes, not rigs (and would overflow the optics). */
 const MAX_LENGTH = 1e4;
+/** The shortest size of a part (radius, width, depth) a rig may give, in metres. */
+const MIN_POSITIVE_LENGTH = 1e-6;
+/** The narrowest content field of view, degrees: narrower ones divide by nearly zero in the fisheye. */
+const MIN_FOV = 0.01;
 
 /** The fields a rig document may hold, by section; used for unknown-field checks with a did-you-mean. */
 export const RIG_FIELDS: Readonly<Record<string, readonly string[]>> = {
@@ -105,6 +109,10 @@ export class FieldReader {
     if (Math.abs(metres) > MAX_LENGTH) {
       throw new RigError(field, `expected ${expected} within 10 km, got ${showValue(v)}`);
     }
+    if (what === 'positive' && metres < MIN_POSITIVE_LENGTH) {
+      // a part thinner than a micrometre is a typing mistake, and its squares underflow in the optics
+      throw new RigError(field, `expected ${expected} of at least 1 micrometre, got ${showValue(v)}`);
+    }
     return metres;
   }
 
@@ -119,6 +127,7 @@ export class FieldReader {
       throw new RigError(field, `expected a direction [x, y, z] of three numbers, got ${showValue(v)}`);
     }
     const d: Vec3 = [v[0], v[1], v[2]];
+    if (!Number.isFinite(length(d))) throw new RigError(field, `expected a direction of moderate numbers (its length overflows), got ${showValue(v)}`);
     if (!(length(d) > 1e-12)) throw new RigError(field, `expected a non-zero direction, got ${showValue(v)}`);
     return normalize(d);
   }
@@ -271,6 +280,7 @@ export function rigFromDocument(input: unknown, options: RigDocumentOptions = {}
   const content = section(doc, 'content', false) ?? {};
   checkKnownFields(content, 'content', RIG_FIELDS.content);
   const fovDeg = content.fov === undefined ? 180 : r.number(content.fov, 'content.fov', (x) => x > 0 && x <= 360, 'an angle in (0, 360] degrees');
+  if (fovDeg < MIN_FOV) throw new RigError('content.fov', `expected a field of view of at least ${MIN_FOV} degrees, got ${showValue(content.fov)}`);
   const eye = content.eye === undefined ? ([0, 0, 0] as Vec3) : r.point(content.eye, 'content.eye');
 
   let name: string | undefined;

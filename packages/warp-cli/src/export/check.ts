@@ -1,0 +1,50 @@
+/**
+ * What every mesh reader checks before a mesh leaves it: sizes a projector can have, and values a
+ * player can use. A crafted or damaged file must be refused here, not warp to black or allocate gigabytes.
+ */
+import { MAX_PROJECTOR_SIDE, type WarpMesh } from '@skyfold/warp-core';
+
+/** Vertices a side: one per projector pixel at most, plus the closing corner. */
+export const MAX_GRID_SIDE = MAX_PROJECTOR_SIDE + 1;
+
+/**
+ * Fisheye coordinates beyond this are no content position: the content circle is [0, 1]; directions
+ * below it reach ρ = 180° / (fov / 2), at most 36 000 for the narrowest fov a rig may give (0.01°).
+ */
+const MAX_UV = 1e5;
+
+/** Throws when a grid of cols × rows spanning width × height pixels is not one a projector can have. */
+export function checkMeshSize(cols: number, rows: number, width: number, height: number): void {
+  const whole = (x: number, lo: number, hi: number) => Number.isInteger(x) && x >= lo && x <= hi;
+  if (!whole(cols, 2, MAX_GRID_SIDE) || !whole(rows, 2, MAX_GRID_SIDE)) {
+    throw new Error(`Expected a grid of 2 to ${MAX_GRID_SIDE} vertices a side but received ${show(cols)}×${show(rows)}`);
+  }
+  if (!(Number.isFinite(width) && width > 0 && width <= MAX_PROJECTOR_SIDE && Number.isFinite(height) && height > 0 && height <= MAX_PROJECTOR_SIDE)) {
+    throw new Error(`Expected a projector frame of at most ${MAX_PROJECTOR_SIDE} pixels a side but received ${show(width)}×${show(height)}`);
+  }
+}
+
+/** Throws on the first vertex whose (u, v) is not finite and near the content, or whose brightness or mask is outside [0, 1]. */
+export function checkMeshValues(mesh: WarpMesh): WarpMesh {
+  checkMeshSize(mesh.cols, mesh.rows, mesh.width, mesh.height);
+  const n = mesh.cols * mesh.rows;
+  for (const [name, a] of [['u', mesh.u], ['v', mesh.v], ['brightness', mesh.brightness], ['mask', mesh.mask]] as const) {
+    if (a.length !== n) throw new Error(`Expected ${n} values of ${name} but received ${a.length}`);
+  }
+  for (let i = 0; i < n; i++) {
+    const u = mesh.u[i];
+    const v = mesh.v[i];
+    if (!(Math.abs(u) <= MAX_UV && Math.abs(v) <= MAX_UV)) {
+      throw new Error(`Expected finite fisheye (u, v) within ±${MAX_UV} at vertex ${i} but received (${show(u)}, ${show(v)})`);
+    }
+    const b = mesh.brightness[i];
+    const m = mesh.mask[i];
+    if (!(b >= 0 && b <= 1 && m >= 0 && m <= 1)) throw new Error(`Expected brightness and mask in [0, 1] at vertex ${i} but received ${show(b)} and ${show(m)}`);
+  }
+  return mesh;
+}
+
+function show(x: unknown): string {
+  const s = typeof x === 'number' ? String(x) : (JSON.stringify(x) ?? String(x));
+  return s.length > 24 ? s.slice(0, 23) + '…' : s;
+}
