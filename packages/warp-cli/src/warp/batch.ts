@@ -53,12 +53,24 @@ export async function warpFrames(map: MapSource, mapSettings: MapSettings, input
   if (jobs.length > 0) {
     const size = await voteSourceSize(jobs.map((j) => j.input));
     const progress = new Progress(jobs.length, runContext().stderr, !opts.json);
+    // never throws: a failure while finishing a frame (the run log on a full disk, an input gone) fails that frame
     const finish = (job: BatchJob, o: FrameOutcome) => {
+      let outcome = o;
       if (o.ok) {
-        done++;
-        manifest.record(basename(job.output), job.input, key);
-      } else failures.push({ input: job.frame.path, reason: o.reason });
-      progress.tick(job.frame.name, o.ok, o.ok ? '' : o.reason);
+        try {
+          manifest.record(basename(job.output), job.input, key);
+        } catch (e) {
+          const why = String((e as Error)?.message ?? e).split('\n')[0];
+          outcome = { id: job.id, ok: false, reason: `warped, but the run log could not record it: ${why.length > 160 ? why.slice(0, 159) + '…' : why}` };
+        }
+      }
+      if (outcome.ok) done++;
+      else failures.push({ input: job.frame.path, reason: outcome.reason });
+      try {
+        progress.tick(job.frame.name, outcome.ok, outcome.ok ? '' : outcome.reason);
+      } catch {
+        // progress is a courtesy; the summary still comes
+      }
     };
     if (!size) {
       for (const j of jobs) finish(j, { id: j.id, ok: false, reason: 'unreadable image: no size in its header' });

@@ -90,6 +90,19 @@ export function expandInputs(inputs: string[]): Frame[] {
       push({ path: input, name: n.slice(0, n.length - extname(n).length), number: NaN });
     }
   }
+  // only regular files are frames: a FIFO would block the size pre-pass forever, a device read without end
+  const odd: string[] = [];
+  for (const f of out) {
+    try {
+      if (!statSync(f.path).isFile()) odd.push(f.path);
+    } catch {
+      // gone or unreadable: reported as a failed frame when its turn comes
+    }
+  }
+  if (odd.length > 0) {
+    const more = odd.length > 1 ? ` (and ${odd.length - 1} more: ${odd.slice(1, 4).join(', ')}${odd.length > 4 ? ', ...' : ''})` : '';
+    throw new UserError(`${odd[0]}: not a regular file (a pipe, socket, device or folder): only regular files are frames${more}`);
+  }
   // frame numbers: the name's last number when every frame has one, else the position
   const nums = out.map((f) => (Number.isNaN(f.number) ? lastNumber(f.name) : f.number));
   const allNumbered = nums.every((x) => x !== undefined);

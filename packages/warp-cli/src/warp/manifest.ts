@@ -3,8 +3,9 @@
  * line are atomic, so shards on several machines may share a folder). A rerun skips a frame whose
  * output exists and whose latest line matches its input (path, size, modification time) and settings.
  */
-import { appendFileSync, readFileSync, statSync } from 'node:fs';
+import { closeSync, constants, lstatSync, openSync, readFileSync, statSync, writeSync } from 'node:fs';
 import { join } from 'node:path';
+import { UserError } from '../errors.js';
 
 export const MANIFEST_NAME = '.skyfold-warp.jsonl';
 
@@ -22,6 +23,13 @@ export class Manifest {
 
   constructor(outDir: string) {
     this.path = join(outDir, MANIFEST_NAME);
+    let link = false;
+    try {
+      link = lstatSync(this.path).isSymbolicLink();
+    } catch {
+      // no run log yet
+    }
+    if (link) throw new UserError(`${this.path}: the run log is a symbolic link; skyfold does not write through links (remove it)`);
     let text = '';
     try {
       text = readFileSync(this.path, 'utf8');
@@ -56,6 +64,12 @@ export class Manifest {
     const st = statSync(input);
     const e: ManifestEntry = { output, input, size: st.size, mtimeMs: st.mtimeMs, settings };
     this.entries.set(output, e);
-    appendFileSync(this.path, JSON.stringify(e) + '\n');
+    // O_NOFOLLOW: a link put there during the run is not written through
+    const fd = openSync(this.path, constants.O_WRONLY | constants.O_APPEND | constants.O_CREAT | constants.O_NOFOLLOW, 0o644);
+    try {
+      writeSync(fd, JSON.stringify(e) + '\n');
+    } finally {
+      closeSync(fd);
+    }
   }
 }

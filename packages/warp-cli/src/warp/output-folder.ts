@@ -2,7 +2,8 @@
  * The output folder of a frame batch: made if missing, never an input folder under any name, and
  * cleared of the temporary files a killed run left behind.
  */
-import { mkdirSync, readdirSync, rmSync, statSync } from 'node:fs';
+import { randomBytes } from 'node:crypto';
+import { mkdirSync, readdirSync, realpathSync, rmSync, statSync } from 'node:fs';
 import { hostname } from 'node:os';
 import { dirname, join, resolve } from 'node:path';
 import { UserError } from '../errors.js';
@@ -15,9 +16,12 @@ export function hostTag(): string {
   return hostname().replace(/[^A-Za-z0-9]/g, '');
 }
 
-/** The part of a temporary file name that says which machine and process writes it. */
+/**
+ * The part of a temporary file name that says which machine and process writes it, then random letters:
+ * a name nobody can predict and plant a link at (temporaries are also created exclusively).
+ */
 export function partialTag(host: string): string {
-  return `${PARTIAL_TAG}${host}-${process.pid}-`;
+  return `${PARTIAL_TAG}${host}-${process.pid}-${randomBytes(6).toString('hex')}-`;
 }
 
 /**
@@ -33,13 +37,25 @@ export function prepareOutputFolder(output: string, all: Frame[]): string {
   }
   const outStat = statSync(outDir);
   if (!outStat.isDirectory()) throw new UserError(`${output}: is not a folder`);
-  // the same folder under any name (a symlink, a relative path) is refused: compare device and inode
-  const inputDirs = new Map<string, string>();
-  for (const f of all) if (!inputDirs.has(dirname(resolve(f.path)))) inputDirs.set(dirname(resolve(f.path)), f.path);
-  for (const [d, example] of inputDirs) {
-    const st = statSync(d);
-    if (st.dev === outStat.dev && st.ino === outStat.ino) {
-      throw new UserError(`${output}: is the folder of the input ${example}; write the warped frames to another folder`);
+  // the same folder under any name (a symlink, a relative path) is refused: compare device and inode of
+  // the folder each input is named in and of the folder its file really lives in (a link's target)
+  const checked = new Set<string>();
+  for (const f of all) {
+    let real: string | undefined;
+    try {
+      real = realpathSync(f.path);
+    } catch {
+      // unreadable: reported when its turn comes
+    }
+    const named = dirname(resolve(f.path));
+    for (const d of real ? [named, dirname(real)] : [named]) {
+      if (checked.has(d)) continue;
+      checked.add(d);
+      const st = statSync(d);
+      if (st.dev === outStat.dev && st.ino === outStat.ino) {
+        const via = real && d === dirname(real) && d !== named ? ` (it links to ${real})` : '';
+        throw new UserError(`${output}: is the folder of the input ${f.path}${via}; write the warped frames to another folder`);
+      }
     }
   }
   return outDir;

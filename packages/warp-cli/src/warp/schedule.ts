@@ -5,7 +5,8 @@ import { FramePool } from './pool.js';
 import type { StopSignal } from './stop-signal.js';
 
 /**
- * Runs `jobs` on `threads` workers (this thread alone when 1), calling `finish` as each completes,
+ * Runs `jobs` on `threads` workers (this thread alone when 1), calling `finish` (which must not throw)
+ * as each completes,
  * until all are done or `stop` fires: frames in flight on workers are then dropped (the workers end),
  * a frame on this thread is finished first.
  */
@@ -32,13 +33,23 @@ export async function runJobs<J extends FrameJob>(
     while ((next < jobs.length || running.size > 0) && !stop.stopping) {
       while (next < jobs.length && pool.free > 0 && !stop.stopping) {
         const job = jobs[next++];
-        const p: Promise<void> = pool.run(job).then((o) => {
-          running.delete(p);
-          if (!stop.stopping) finish(job, o);
-        });
+        const p: Promise<void> = pool
+          .run(job)
+          .catch((e: unknown): FrameOutcome => ({ id: job.id, ok: false, reason: `failed: ${String((e as Error)?.message ?? e).split('\n')[0]}` }))
+          .then((o) => {
+            running.delete(p);
+            if (!stop.stopping) finish(job, o);
+          });
         running.add(p);
       }
       if (running.size > 0) await Promise.race([...running, stop.stopped]);
+      else if (next < jobs.length && pool.free === 0) {
+        // every worker died and none is left: the remaining frames fail, the run ends
+        while (next < jobs.length) {
+          const job = jobs[next++];
+          finish(job, { id: job.id, ok: false, reason: 'not warped: the worker threads kept dying' });
+        }
+      }
     }
   } finally {
     await pool.close();
