@@ -10,7 +10,7 @@ import { readFileSync } from 'node:fs';
 import { join } from 'node:path';
 import sharp from 'sharp';
 import { parse } from 'yaml';
-import { rigFromDocument, pixelMapFromRig, prepareBilinear, remap, createImageLike, Tracer } from '@skyfold/warp-core';
+import { rigFromDocument, pixelMapFromRig, prepareBilinear, remap, createImageLike, geodesicDome, Tracer } from '@skyfold/warp-core';
 
 const [name, dir, repsText] = process.argv.slice(2);
 const reps = Number(repsText ?? 5);
@@ -54,6 +54,13 @@ const CASES = {
     const tracer = new Tracer(loadRig());
     return () => tracer.frameGrid({ float32: true });
   },
+  // the same trace with the dome as built: class I geodesic meshes generated for the demo rig's dome
+  // (radius 2.5 m, floor 0.5 m below the springline). A 3V 5/8 (105 triangles, the ragged base of an
+  // odd frequency) and a 32V hemisphere on a skirt to the floor (10,560), both convex; the 3V on a
+  // skirt is not convex and takes the full nearest-hit search.
+  'trace-3v': () => meshTraceCase(3, -0.1876, false),
+  'trace-32v': () => meshTraceCase(32, 0, true),
+  'trace-3v-skirt': () => meshTraceCase(3, -0.1876, true),
   // the per-pixel map onto a 4096² source as `skyfold warp` builds it from a rig (trace, mask, brightness)
   map: () => {
     const rig = loadRig();
@@ -74,6 +81,14 @@ const CASES = {
   'encode-1': () => encodeCase(1),
   'encode-6': () => encodeCase(6),
 };
+
+function meshTraceCase(frequency, cut, skirt) {
+  const doc = parse(readFileSync(RIG, 'utf8'));
+  const R = doc.dome.diameter / 2;
+  const dome = geodesicDome({ frequency, radius: R, keepAbove: cut * R, skirtTo: skirt ? -doc.dome.floor : undefined });
+  const tracer = new Tracer(rigFromDocument({ ...doc, dome: { ...doc.dome, mesh: 'generated.obj' } }, { loadMesh: () => dome }));
+  return () => tracer.frameGrid({ float32: true });
+}
 
 /** Size of the last PNG an encode case wrote. */
 let encodedBytes = 0;

@@ -107,7 +107,7 @@ const median = (a) => {
 };
 const summary = (values) => ({ median: median(values), min: Math.min(...values), max: Math.max(...values), values });
 
-const CASES = ['trace', 'map', 'bilinear', 'bilinear-float', 'bilinear-gain', 'area', 'opencv-float', 'opencv-fixed', 'frame-io', 'frame-bilinear', 'frame-area', 'encode-1', 'encode-6'];
+const CASES = ['trace', 'trace-3v', 'trace-32v', 'trace-3v-skirt', 'map', 'bilinear', 'bilinear-float', 'bilinear-gain', 'area', 'opencv-float', 'opencv-fixed', 'frame-io', 'frame-bilinear', 'frame-area', 'encode-1', 'encode-6'];
 
 const m = machine();
 console.log(`skyfold bench on ${m.cpu}, nproc ${m.nproc}, Node ${m.node}${quick ? ' (quick)' : ''}`);
@@ -141,6 +141,10 @@ const rows = [];
 const row = (id, what, unit, values, aim) => rows.push({ id, what, unit, ...summary(values), ...(aim ? { aim } : {}) });
 const { width: W, height: H } = inputs.map;
 if (have('trace')) row('trace', `whole-frame trace, ${W} × ${H}, one core`, 'Mrays/s', ms('trace').map((t) => (W * H) / t / 1000), '≥ 10');
+// on a dome mesh, as a share of the sphere's rays per second (sphere time / mesh time, within each round)
+if (have('trace', 'trace-3v')) row('trace-3v', 'trace on a `dome.mesh`: 3V 5/8 geodesic, 105 triangles, / the sphere', '×', ratio('trace', 'trace-3v'), '≥ 0.5');
+if (have('trace', 'trace-32v')) row('trace-32v', 'trace on a `dome.mesh`: 32V hemisphere on a skirt, 10,560 triangles, / the sphere', '×', ratio('trace', 'trace-32v'), '≥ 0.33');
+if (have('trace', 'trace-3v-skirt')) row('trace-3v-skirt', 'trace on a `dome.mesh` that is not convex (3V 5/8 on a skirt, 135 triangles) / the sphere', '×', ratio('trace', 'trace-3v-skirt'));
 if (have('map')) {
   row('map-time', `per-pixel map from the rig onto ${SOURCE}² (trace, mask, brightness), one core`, 'ms', ms('map'), '');
   row('map-memory', 'peak memory of the process building that map', 'MiB', perRound.map.map((r) => r.maxRssMiB), '≤ 250');

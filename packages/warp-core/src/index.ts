@@ -18,8 +18,9 @@ export { directionToFisheye, fisheyeToDirection } from './optics/fisheye.js';
 export { DomeMesh, MAX_DOME_TRIANGLES, meshNominalRadius, openUpwardRays, type DomeMeshSource, type TriangleSoup } from './optics/dome-mesh.js';
 export { MeshFileError, parseTriangleFile, triangleFileFormat, type TriangleFileFormat } from './optics/dome-mesh-files.js';
 export { TriangleBvh } from './optics/triangle-bvh.js';
+export { geodesicDome, geodesicObj, icosahedron, type GeodesicDome, type GeodesicOptions, type StrutClass, type TriangleKind } from './optics/geodesic.js';
 export { HitKind, Tracer, allocGridOutput, landsOnDome, tracePixel, type GridOutput, type HitName, type TraceResult } from './trace.js';
-export { domePointFromEye, locateDirection, type LocateResult } from './locate.js';
+export { domePointFromEye, domePointSeen, locateDirection, type LocateFailure, type LocateResult } from './locate.js';
 
 export { createMesh, meshVertexPosition, type WarpMesh } from './mesh/mesh.js';
 export { BAKE_DEFAULTS, bakeMesh, type BakeOptions, type BakeResult, type MeshAccuracy } from './mesh/bake.js';

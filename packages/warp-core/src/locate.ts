@@ -6,14 +6,14 @@
  * bisects the directions to P and D. On the arc seen by both P and D the bisection residual changes
  * sign exactly once, so plain bisection finds it to machine precision without a starting guess — no
  * Newton step that could wander past the mirror's silhouette. The answer is then checked against the
- * forward trace.
+ * forward trace. On an as-built dome the dome point is where the eye's ray meets the mesh.
  */
 import { angleBetween, azAltFromDirection, directionFromAzAlt, dot, length, normalize, safeAcos, sub, type Vec3 } from './math.js';
 import { onCap } from './optics/mirror.js';
 import { insideFrame, rayToPixel } from './optics/projector.js';
 import type { Tracer } from './trace.js';
 
-export type LocateFailure = 'no-reflection' | 'cap' | 'behind-projector' | 'outside-frame' | 'unstable';
+export type LocateFailure = 'no-reflection' | 'cap' | 'behind-projector' | 'outside-frame' | 'unstable' | 'open';
 
 export type LocateResult =
   | { pixel: [number, number]; mirrorPoint: Vec3; domePoint: Vec3 }
@@ -25,6 +25,19 @@ export function domePointFromEye(eye: Vec3, w: Vec3, R: number): Vec3 {
   const c = dot(eye, eye) - R * R;
   const s = -b + Math.sqrt(Math.max(0, b * b - c));
   return [eye[0] + s * w[0], eye[1] + s * w[1], eye[2] + s * w[2]];
+}
+
+/**
+ * The dome point seen from the content's eye along unit w: on the sphere of `dome.radius`, or on an
+ * as-built dome the first triangle the eye's ray meets going forward (null when it meets none: an
+ * opening).
+ */
+export function domePointSeen(tracer: Tracer, w: Vec3): Vec3 | null {
+  const { dome, content } = tracer.rig;
+  if (!dome.mesh) return domePointFromEye(content.eye, w, dome.radius);
+  const e = content.eye;
+  const s = dome.mesh.firstHit(e, w, tracer.meshHoldsEye);
+  return s < 0 ? null : [e[0] + s * w[0], e[1] + s * w[1], e[2] + s * w[2]];
 }
 
 /**
@@ -97,7 +110,8 @@ export function reflectionPoint(P: Vec3, C: Vec3, r: number, D: Vec3): Vec3 | nu
 export function locateDirection(tracer: Tracer, azimuth: number, altitude: number, tolerance = 1e-9): LocateResult {
   const { rig, frame } = tracer;
   const w = directionFromAzAlt(azimuth, altitude);
-  const D = domePointFromEye(rig.content.eye, w, rig.dome.radius);
+  const D = domePointSeen(tracer, w);
+  if (D === null) return { pixel: null, failure: 'open', reason: 'an opening of the as-built dome: no part of the dome lies in that direction' };
   const X = reflectionPoint(frame.origin, rig.mirror.center, rig.mirror.radius, D);
   if (X === null) return { pixel: null, failure: 'no-reflection', reason: "outside the mirror's reflected view: no point of the mirror sends the projector's light there" };
   if (!onCap(rig.mirror, X)) return { pixel: null, failure: 'cap', reason: "hidden by the cap: the mirror point that would light it lies outside the reflective cap (the mount or the mirror's back)" };

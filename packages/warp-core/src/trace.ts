@@ -8,6 +8,7 @@ import { azAltFromDirection, type Vec3 } from './math.js';
 import { capCosine, mirrorNormal, onCap, raySphereFirstHit, reflect } from './optics/mirror.js';
 import { pixelToRay, projectorFrame, type ProjectorFrame } from './optics/projector.js';
 import type { Rig } from './rig/model.js';
+import type { TriangleBvh } from './optics/triangle-bvh.js';
 
 /** What a projector pixel's light does. Numeric codes are used in typed arrays. */
 export const HitKind = { MirrorMiss: 0, Dome: 1, BelowHorizon: 2, Open: 3 } as const;
@@ -46,8 +47,33 @@ export type TraceResult =
 /** A rig prepared for tracing: constants computed once. */
 export class Tracer {
   readonly frame: ProjectorFrame;
+  /**
+   * On an as-built dome, true when the mesh is convex and holds the whole mirror sphere strictly inside:
+   * the reflected ray meets it at most once, so the first triangle found is the hit (no nearer one to seek).
+   */
+  readonly meshHoldsMirror: boolean;
+  /**
+   * What the grid kernel traces against: the mesh closed by portals at its openings when that is convex
+   * and holds the mirror (then triangles from `portalStart` on are openings), else the mesh itself.
+   */
+  private readonly gridBvh: TriangleBvh | undefined;
+  /** On an as-built dome, true when the mesh is convex and holds the content's eye strictly inside. */
+  readonly meshHoldsEye: boolean;
+  private readonly portalStart: number;
   constructor(readonly rig: Rig) {
     this.frame = projectorFrame(rig.projector);
+    const mesh = rig.dome.mesh;
+    const [cx, cy, cz] = rig.mirror.center;
+    this.meshHoldsMirror = mesh?.encloses(rig.mirror.center, rig.mirror.radius) ?? false;
+    this.meshHoldsEye = mesh?.encloses(rig.content.eye, 0) ?? false;
+    const closed = this.meshHoldsMirror ? mesh!.closedConvex() : null;
+    if (closed && closed !== mesh!.bvh && closed.containsBall(cx, cy, cz, rig.mirror.radius)) {
+      this.gridBvh = closed;
+      this.portalStart = mesh!.triangleCount;
+    } else {
+      this.gridBvh = mesh?.bvh;
+      this.portalStart = Infinity;
+    }
   }
 
   /** Traces one continuous pixel coordinate, with every intermediate quantity. */
@@ -62,7 +88,7 @@ export class Tracer {
     if (!onCap(mirror, X)) return { kind: 'mirror-miss', ray }; // blocked by the mount / back of the mirror
     const n = mirrorNormal([0, 0, 0], mirror, X);
     const r = reflect([0, 0, 0], ray, n);
-    const s = dome.mesh ? dome.mesh.firstHit(X, r) : rayDomeExit(X, r, dome.radius);
+    const s = dome.mesh ? dome.mesh.firstHit(X, r, this.meshHoldsMirror) : rayDomeExit(X, r, dome.radius);
     if (s < 0) return { kind: 'open', ray, mirrorPoint: X, mirrorDistance: t, reflected: r };
     const D: Vec3 = [X[0] + s * r[0], X[1] + s * r[1], X[2] + s * r[2]];
     const e = content.eye;
@@ -122,7 +148,9 @@ export class Tracer {
     const oz = pz - mcz;
     const cc = ox * ox + oy * oy + oz * oz - mr * mr;
     const R2 = dome.radius * dome.radius;
-    const bvh = dome.mesh?.bvh;
+    const bvh = this.gridBvh;
+    const anyHit = this.meshHoldsMirror;
+    const portalStart = this.portalStart;
     const [ex, ey, ez] = content.eye;
     const invFov = 1 / content.fov;
     const { u, v, kind, point, mirrorDistance } = out;
@@ -172,8 +200,8 @@ export class Tracer {
           const sb = Xx * rx + Xy * ry + Xz * rz;
           s = -sb + Math.sqrt(sb * sb - (Xx * Xx + Xy * Xy + Xz * Xz - R2));
         } else {
-          s = bvh.firstHit(Xx, Xy, Xz, rx, ry, rz, 1e-9);
-          if (s < 0) {
+          s = bvh.firstHit(Xx, Xy, Xz, rx, ry, rz, 1e-9, Infinity, anyHit);
+          if (s < 0 || bvh.hitTriangle >= portalStart) {
             kind[k] = 3;
             u[k] = NaN_;
             v[k] = NaN_;

@@ -9,8 +9,6 @@
  * intersection", 1997). Either face of a triangle counts.
  */
 
-/** Leaf flag in a node's second word; the low bits hold the leaf's triangle count. */
-const LEAF = 0x80000000;
 const MAX_LEAF = 4;
 const BINS = 32;
 /** A hair of barycentric slack so a ray through a shared edge cannot slip between two triangles. */
@@ -22,8 +20,8 @@ const COST_TRIANGLE = 1;
 export class TriangleBvh {
   /** Per node: min x, y, z, max x, y, z. */
   readonly bounds: Float64Array;
-  /** Per node: interior [right child, split axis]; leaf [first triangle, LEAF | count]. */
-  readonly data: Uint32Array;
+  /** Per node: interior [right child, −1 − split axis]; leaf [first triangle, count ≥ 0]. */
+  readonly data: Int32Array;
   /** Per triangle in leaf order: v0, e1, e2 (9 numbers). */
   readonly triangles: Float64Array;
   /** Leaf order → the triangle's index in the input. */
@@ -34,7 +32,16 @@ export class TriangleBvh {
   hitTriangle = -1;
   hitU = 0;
   hitV = 0;
-  private readonly stack: Uint32Array;
+  private readonly stack: Int32Array;
+  private readonly stackT: Float64Array;
+  /** Leaf-order slot of the last hit (−1 before any): the next query tests it first. */
+  private lastSlot = -1;
+  /** See `convex`: undefined until first asked, null when not convex. */
+  private planeSide: Int8Array | null | undefined;
+  /** Edge neighbours per leaf slot, for convex meshes (see `edgeNeighbours`). */
+  private neighbours: Int32Array | undefined;
+  private slotU = 0;
+  private slotV = 0;
 
   /**
    * Builds over the triangles (i0, i1, i2) = indices[3k..3k+2] of the xyz `positions`. Indices must be
@@ -63,7 +70,7 @@ export class TriangleBvh {
     for (let k = 0; k < n; k++) ids[k] = k;
     const maxNodes = Math.max(1, 2 * n - 1);
     const bounds = new Float64Array(6 * maxNodes);
-    const data = new Uint32Array(2 * maxNodes);
+    const data = new Int32Array(2 * maxNodes);
     let count = 0;
     let deepest = 0;
     // scratch for the binned SAH
@@ -110,7 +117,7 @@ export class TriangleBvh {
       const m = end - start;
       const leaf = () => {
         data[2 * node] = start;
-        data[2 * node + 1] = (LEAF | m) >>> 0;
+        data[2 * node + 1] = m;
         return node;
       };
       if (m <= MAX_LEAF) return leaf();
@@ -193,7 +200,7 @@ export class TriangleBvh {
       build(start, mid, level + 1);
       const right = build(mid, end, level + 1);
       data[2 * node] = right;
-      data[2 * node + 1] = axis;
+      data[2 * node + 1] = -1 - axis;
       return node;
     };
 
@@ -201,7 +208,7 @@ export class TriangleBvh {
     else {
       emptyBox(bounds, 0);
       data[0] = 0;
-      data[1] = LEAF >>> 0;
+      data[1] = 0;
       count = 1;
     }
     this.nodeCount = count;
@@ -222,18 +229,52 @@ export class TriangleBvh {
       }
     }
     this.triangles = tri;
-    this.stack = new Uint32Array(Math.max(64, 2 * deepest + 4));
+    this.stack = new Int32Array(Math.max(64, 2 * deepest + 4));
+    this.stackT = new Float64Array(this.stack.length);
   }
 
   /**
    * Distance t along o + t·d to the nearest triangle with tMin < t < tMax, or −1 when there is none;
    * d need not be unit length (t is in units of |d|). Sets `hitTriangle`, `hitU`, `hitV`. Allocates nothing.
+   *
+   * Neighbouring rays (the pixels of a row) mostly meet the same triangle, so the last hit's triangle is
+   * tested first: its distance bounds the search from the start and most boxes are never entered. Both
+   * children's boxes are tested at their parent; the nearer is entered, the farther kept with its entry
+   * distance and dropped unopened once a nearer hit is known. The answer does not depend on the hint.
+   *
+   * `anyHit`: return the first hit found. Only for rays from a point strictly inside a convex mesh
+   * (`convex` and `containsBall`), where a ray meets the surface once and any hit is the first.
    */
-  firstHit(ox: number, oy: number, oz: number, dx: number, dy: number, dz: number, tMin = 0, tMax = Infinity): number {
+  firstHit(ox: number, oy: number, oz: number, dx: number, dy: number, dz: number, tMin = 0, tMax = Infinity, anyHit = false): number {
     const bounds = this.bounds;
     const data = this.data;
     const tri = this.triangles;
     const stack = this.stack;
+    const stackT = this.stackT;
+    let best = tMax;
+    let hit = -1;
+    let hu = 0;
+    let hv = 0;
+    // the hint: the triangle the previous query hit (and, from inside a convex mesh, its neighbours)
+    const hint = this.lastSlot;
+    if (hint >= 0) {
+      const t = this.slotHit(hint, ox, oy, oz, dx, dy, dz, tMin, best);
+      if (t >= 0) {
+        best = t;
+        hit = hint;
+        hu = this.slotU;
+        hv = this.slotV;
+        if (anyHit) return this.finish(hit, hu, hv, best);
+      } else if (anyHit && this.neighbours !== undefined) {
+        const nb = this.neighbours;
+        for (let e = 3 * hint; e < 3 * hint + 3; e++) {
+          const s = nb[e];
+          if (s < 0) continue;
+          const t2 = this.slotHit(s, ox, oy, oz, dx, dy, dz, tMin, best);
+          if (t2 >= 0) return this.finish(s, this.slotU, this.slotV, t2);
+        }
+      }
+    }
     const ix = 1 / dx;
     const iy = 1 / dy;
     const iz = 1 / dz;
@@ -244,32 +285,30 @@ export class TriangleBvh {
     const fx = 3 - nx;
     const fy = 5 - ny;
     const fz = 7 - nz;
-    let best = tMax;
-    let hit = -1;
-    let hu = 0;
-    let hv = 0;
-    let sp = 0;
-    stack[sp++] = 0;
-    while (sp > 0) {
-      const node = stack[--sp];
-      const o = 6 * node;
-      // slab test; a NaN from 0·∞ fails every comparison and so never narrows the interval
-      let tn = (bounds[o + nx] - ox) * ix;
-      let tf = (bounds[o + fx] - ox) * ix;
-      const tyn = (bounds[o + ny] - oy) * iy;
-      const tyf = (bounds[o + fy] - oy) * iy;
+    // the root's box; NaN from 0·∞ fails every comparison and so never narrows an interval
+    {
+      let tn = (bounds[nx] - ox) * ix;
+      let tf = (bounds[fx] - ox) * ix;
+      const tyn = (bounds[ny] - oy) * iy;
+      const tyf = (bounds[fy] - oy) * iy;
       if (tyn > tn) tn = tyn;
       if (tyf < tf) tf = tyf;
-      const tzn = (bounds[o + nz] - oz) * iz;
-      const tzf = (bounds[o + fz] - oz) * iz;
+      const tzn = (bounds[nz] - oz) * iz;
+      const tzf = (bounds[fz] - oz) * iz;
       if (tzn > tn) tn = tzn;
       if (tzf < tf) tf = tzf;
-      if (tn > tf || tf < tMin || tn > best) continue;
+      if (!(tn <= tf && tf >= tMin && tn <= best)) return this.finish(hit, hu, hv, best);
+    }
+    let node = 0;
+    let sp = 0;
+    for (;;) {
       const w = data[2 * node + 1];
-      if (w & LEAF) {
+      if (w > 0) {
+        // a leaf of w triangles
         const first = data[2 * node];
-        const end = first + (w & 0x7fffffff);
+        const end = first + w;
         for (let s = first; s < end; s++) {
+          if (s === hint) continue;
           const k = 9 * s;
           const e1x = tri[k + 3], e1y = tri[k + 4], e1z = tri[k + 5];
           const e2x = tri[k + 6], e2y = tri[k + 7], e2z = tri[k + 8];
@@ -295,23 +334,232 @@ export class TriangleBvh {
             hv = v;
           }
         }
+        if (anyHit && hit >= 0) break;
+      } else if (w < 0) {
+        // an interior node: test both children's boxes, enter the nearer, keep the farther
+        const a = node + 1;
+        const b = data[2 * node];
+        let oa = 6 * a;
+        let tnA = (bounds[oa + nx] - ox) * ix;
+        let tfA = (bounds[oa + fx] - ox) * ix;
+        let tn = (bounds[oa + ny] - oy) * iy;
+        let tf = (bounds[oa + fy] - oy) * iy;
+        if (tn > tnA) tnA = tn;
+        if (tf < tfA) tfA = tf;
+        tn = (bounds[oa + nz] - oz) * iz;
+        tf = (bounds[oa + fz] - oz) * iz;
+        if (tn > tnA) tnA = tn;
+        if (tf < tfA) tfA = tf;
+        const hitA = tnA <= tfA && tfA >= tMin && tnA <= best;
+        oa = 6 * b;
+        let tnB = (bounds[oa + nx] - ox) * ix;
+        let tfB = (bounds[oa + fx] - ox) * ix;
+        tn = (bounds[oa + ny] - oy) * iy;
+        tf = (bounds[oa + fy] - oy) * iy;
+        if (tn > tnB) tnB = tn;
+        if (tf < tfB) tfB = tf;
+        tn = (bounds[oa + nz] - oz) * iz;
+        tf = (bounds[oa + fz] - oz) * iz;
+        if (tn > tnB) tnB = tn;
+        if (tf < tfB) tfB = tf;
+        const hitB = tnB <= tfB && tfB >= tMin && tnB <= best;
+        if (hitA && hitB) {
+          if (tnA <= tnB) {
+            stack[sp] = b;
+            stackT[sp++] = tnB;
+            node = a;
+          } else {
+            stack[sp] = a;
+            stackT[sp++] = tnA;
+            node = b;
+          }
+          continue;
+        }
+        if (hitA) {
+          node = a;
+          continue;
+        }
+        if (hitB) {
+          node = b;
+          continue;
+        }
+      }
+      // next kept box that a nearer hit has not ruled out
+      while (sp > 0 && stackT[sp - 1] > best) sp--;
+      if (sp === 0) break;
+      node = stack[--sp];
+    }
+    return this.finish(hit, hu, hv, best);
+  }
+
+  /**
+   * Whether the triangles bound a convex region: every vertex on one side of every triangle's plane
+   * (within 1e-9 of the mesh's size). Then a ray from a point strictly inside all the planes' inner
+   * sides leaves that region once, and any triangle it meets is the one it meets first. Computed on
+   * first use (a box-pruned search per plane); meshes above 500,000 triangles are not checked.
+   */
+  get convex(): boolean {
+    if (this.planeSide === undefined) this.planeSide = this.sides();
+    return this.planeSide !== null;
+  }
+
+  /**
+   * True when the ball (centre, radius) lies strictly inside every triangle's plane, on the side of the
+   * mesh's other vertices, and the mesh is `convex`: rays starting in the ball may use `anyHit`.
+   */
+  containsBall(cx: number, cy: number, cz: number, radius: number): boolean {
+    if (!this.convex) return false;
+    const side = this.planeSide!;
+    const tri = this.triangles;
+    const tol = this.tolerance;
+    for (let s = 0; s < side.length; s++) {
+      const k = 9 * s;
+      const [nx, ny, nz] = planeNormal(tri, k);
+      const d = nx * (cx - tri[k]) + ny * (cy - tri[k + 1]) + nz * (cz - tri[k + 2]);
+      if (Math.abs(d) <= radius + tol) return false;
+      if (side[s] !== 0 && Math.sign(d) !== side[s]) return false;
+    }
+    return true;
+  }
+
+  /** 1e-9 of the bounding box's diagonal. */
+  private get tolerance(): number {
+    const b = this.bounds;
+    const diag = Math.hypot(b[3] - b[0], b[4] - b[1], b[5] - b[2]);
+    return 1e-9 * (Number.isFinite(diag) ? diag : 0);
+  }
+
+  /** Per triangle the side (+1, −1, or 0 when every vertex is on its plane) of the other vertices; null when some plane has vertices on both sides. */
+  private sides(): Int8Array | null {
+    const n = this.order.length;
+    if (n > 500_000) return null;
+    const tri = this.triangles;
+    const tol = this.tolerance;
+    const out = new Int8Array(n);
+    for (let s = 0; s < n; s++) {
+      const k = 9 * s;
+      const [nx, ny, nz] = planeNormal(tri, k);
+      const d0 = nx * tri[k] + ny * tri[k + 1] + nz * tri[k + 2];
+      const pos = this.anyVertexBeyond(nx, ny, nz, d0 + tol);
+      const neg = this.anyVertexBeyond(-nx, -ny, -nz, -d0 + tol);
+      if (pos && neg) return null;
+      out[s] = pos ? 1 : neg ? -1 : 0;
+    }
+    this.neighbours = this.edgeNeighbours();
+    return out;
+  }
+
+  /** Whether some triangle corner p has n·p > level (boxes wholly at or below it are skipped). */
+  private anyVertexBeyond(nx: number, ny: number, nz: number, level: number): boolean {
+    const b = this.bounds;
+    const data = this.data;
+    const tri = this.triangles;
+    const stack = this.stack;
+    let sp = 0;
+    stack[sp++] = 0;
+    while (sp > 0) {
+      const node = stack[--sp];
+      const o = 6 * node;
+      const top = nx * (nx > 0 ? b[o + 3] : b[o]) + ny * (ny > 0 ? b[o + 4] : b[o + 1]) + nz * (nz > 0 ? b[o + 5] : b[o + 2]);
+      if (!(top > level)) continue;
+      const w = data[2 * node + 1];
+      if (w >= 0) {
+        const first = data[2 * node];
+        for (let s = first; s < first + w; s++) {
+          const k = 9 * s;
+          const x = tri[k], y = tri[k + 1], z = tri[k + 2];
+          if (nx * x + ny * y + nz * z > level) return true;
+          if (nx * (x + tri[k + 3]) + ny * (y + tri[k + 4]) + nz * (z + tri[k + 5]) > level) return true;
+          if (nx * (x + tri[k + 6]) + ny * (y + tri[k + 7]) + nz * (z + tri[k + 8]) > level) return true;
+        }
       } else {
-        // nearer child on top of the stack
-        const right = data[2 * node];
-        const axis = w;
-        const forward = axis === 0 ? dx >= 0 : axis === 1 ? dy >= 0 : dz >= 0;
-        if (forward) {
-          stack[sp++] = right;
-          stack[sp++] = node + 1;
-        } else {
-          stack[sp++] = node + 1;
-          stack[sp++] = right;
+        stack[sp++] = node + 1;
+        stack[sp++] = data[2 * node];
+      }
+    }
+    return false;
+  }
+
+  /** Möller–Trumbore on the triangle in leaf slot s: its t in (tMin, tMax), or −1; barycentrics in slotU, slotV. */
+  private slotHit(s: number, ox: number, oy: number, oz: number, dx: number, dy: number, dz: number, tMin: number, tMax: number): number {
+    const tri = this.triangles;
+    const k = 9 * s;
+    const e1x = tri[k + 3], e1y = tri[k + 4], e1z = tri[k + 5];
+    const e2x = tri[k + 6], e2y = tri[k + 7], e2z = tri[k + 8];
+    const px = dy * e2z - dz * e2y;
+    const py = dz * e2x - dx * e2z;
+    const pz = dx * e2y - dy * e2x;
+    const det = e1x * px + e1y * py + e1z * pz;
+    if (det === 0) return -1;
+    const inv = 1 / det;
+    const sx = ox - tri[k], sy = oy - tri[k + 1], sz = oz - tri[k + 2];
+    const u = (sx * px + sy * py + sz * pz) * inv;
+    if (u < -EDGE || u > 1 + EDGE) return -1;
+    const qx = sy * e1z - sz * e1y;
+    const qy = sz * e1x - sx * e1z;
+    const qz = sx * e1y - sy * e1x;
+    const v = (dx * qx + dy * qy + dz * qz) * inv;
+    if (v < -EDGE || u + v > 1 + EDGE) return -1;
+    const t = (e2x * qx + e2y * qy + e2z * qz) * inv;
+    if (!(t > tMin && t < tMax)) return -1;
+    this.slotU = u;
+    this.slotV = v;
+    return t;
+  }
+
+  /** Per leaf slot, the slots across its three edges (−1 where none): triangles sharing two corners. */
+  private edgeNeighbours(): Int32Array {
+    const n = this.order.length;
+    const tri = this.triangles;
+    const ids = new Map<string, number>();
+    const corner = new Int32Array(3 * n);
+    for (let s = 0; s < n; s++) {
+      const k = 9 * s;
+      for (let c = 0; c < 3; c++) {
+        const x = tri[k] + (c === 1 ? tri[k + 3] : c === 2 ? tri[k + 6] : 0);
+        const y = tri[k + 1] + (c === 1 ? tri[k + 4] : c === 2 ? tri[k + 7] : 0);
+        const z = tri[k + 2] + (c === 1 ? tri[k + 5] : c === 2 ? tri[k + 8] : 0);
+        const key = `${x},${y},${z}`;
+        let id = ids.get(key);
+        if (id === undefined) ids.set(key, (id = ids.size));
+        corner[3 * s + c] = id;
+      }
+    }
+    const nv = ids.size;
+    const firstUse = new Map<number, number>();
+    const out = new Int32Array(3 * n).fill(-1);
+    for (let s = 0; s < n; s++) {
+      for (let e = 0; e < 3; e++) {
+        const a = corner[3 * s + e];
+        const b = corner[3 * s + ((e + 1) % 3)];
+        const key = a < b ? a * nv + b : b * nv + a;
+        const other = firstUse.get(key);
+        if (other === undefined) firstUse.set(key, 3 * s + e);
+        else {
+          out[3 * s + e] = Math.floor(other / 3);
+          out[other] = s;
         }
       }
     }
+    return out;
+  }
+
+  private finish(hit: number, hu: number, hv: number, best: number): number {
+    if (hit >= 0) this.lastSlot = hit;
     this.hitTriangle = hit < 0 ? -1 : this.order[hit];
     this.hitU = hu;
     this.hitV = hv;
     return hit < 0 ? -1 : best;
   }
+}
+
+/** Unit normal (e1 × e2) of the triangle stored at offset k; zero for a degenerate triangle. */
+function planeNormal(tri: Float64Array, k: number): [number, number, number] {
+  const e1x = tri[k + 3], e1y = tri[k + 4], e1z = tri[k + 5];
+  const e2x = tri[k + 6], e2y = tri[k + 7], e2z = tri[k + 8];
+  const x = e1y * e2z - e1z * e2y;
+  const y = e1z * e2x - e1x * e2z;
+  const z = e1x * e2y - e1y * e2x;
+  const l = Math.hypot(x, y, z);
+  return l > 0 ? [x / l, y / l, z / l] : [0, 0, 0];
 }
