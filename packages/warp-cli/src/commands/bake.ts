@@ -103,7 +103,7 @@ export function registerBake(program: Command): void {
       // MPCDI's warp grid is in the standard's fill layout, traced at its own sample positions
       const warp = targets.some((t) => t.format === 'mpcdi') ? fillLayoutFromRig(rig, result.mesh.cols, result.mesh.rows) : undefined;
       for (const t of targets) {
-        writeOutputFile(t.path, await encodeMesh(result.mesh, t.format, { pixels, mpcdi: { warp } }));
+        writeOutputFile(t.path, await encodeMesh(result.mesh, t.format, { pixels, mpcdi: { warp }, dome: rig.dome.mesh }));
       }
       const summary = { ...bakeSummary(result, targets.map((t) => t.path), rig.units), alphaResolution: opts.alphaResolution };
       if (opts.json) {

@@ -12,6 +12,9 @@
  * - material: unlit (KHR_materials_unlit), double sided.
  * - root `extras`: mesh.meta plus `skyfoldMesh` {version, cols, rows, width, height}, from which the
  *   reader rebuilds the grid. Vertices are in grid order, the top row of the projector frame first.
+ * - baked from an as-built dome (`dome.mesh`): a second mesh, `as-built-dome`, its triangles (POSITION
+ *   in metres in the rig's world frame, z up), on a node outside the scene so a player never draws it;
+ *   with the rig in extras it stands for the rig without the mesh file beside it.
  */
 import { Document, Extension, NodeIO, type ReaderContext, type WriterContext } from '@gltf-transform/core';
 import type { WarpMesh } from '@skyfold/warp-core';
@@ -61,7 +64,16 @@ export function gridTriangles(cols: number, rows: number): Uint32Array {
   return out;
 }
 
-export async function writeGlb(mesh: WarpMesh): Promise<Uint8Array> {
+/** The as-built dome's triangles, metres, world frame. */
+export interface GlbDome {
+  positions: ArrayLike<number>;
+  indices: ArrayLike<number>;
+}
+
+/** Name of the glTF mesh (and node) holding an as-built dome's triangles. */
+export const GLB_DOME_NAME = 'as-built-dome';
+
+export async function writeGlb(mesh: WarpMesh, dome?: GlbDome): Promise<Uint8Array> {
   const { cols, rows, width, height } = mesh;
   const n = cols * rows;
   const position = new Float32Array(n * 3);
@@ -97,6 +109,15 @@ export async function writeGlb(mesh: WarpMesh): Promise<Uint8Array> {
     .setMaterial(material);
   const node = doc.createNode('warp-mesh').setMesh(doc.createMesh('warp-mesh').addPrimitive(primitive));
   doc.getRoot().setDefaultScene(doc.createScene('skyfold').addChild(node));
+  if (dome) {
+    const material = doc.createMaterial(GLB_DOME_NAME).setDoubleSided(true);
+    const prim = doc
+      .createPrimitive()
+      .setAttribute('POSITION', doc.createAccessor('dome-position').setType('VEC3').setArray(Float32Array.from(dome.positions)).setBuffer(buffer))
+      .setIndices(doc.createAccessor('dome-indices').setType('SCALAR').setArray(Uint32Array.from(dome.indices)).setBuffer(buffer))
+      .setMaterial(material);
+    doc.createNode(GLB_DOME_NAME).setMesh(doc.createMesh(GLB_DOME_NAME).addPrimitive(prim));
+  }
   return createIO().writeBinary(doc);
 }
 
@@ -120,7 +141,7 @@ export async function readGlb(bytes: Uint8Array): Promise<WarpMesh> {
   checkMeshSize(cols, rows, width, height);
   delete extras[GLB_GRID_KEY];
 
-  const primitives = doc.getRoot().listMeshes().flatMap((m) => m.listPrimitives());
+  const primitives = doc.getRoot().listMeshes().filter((m) => m.getName() !== GLB_DOME_NAME).flatMap((m) => m.listPrimitives());
   if (primitives.length !== 1) throw new Error(`Expected one mesh primitive in the skyfold glb but found ${primitives.length}`);
   const prim = primitives[0];
   const n = cols * rows;

@@ -2,7 +2,7 @@
 import type { PixelFields, WarpMesh } from '@skyfold/warp-core';
 import { checkMeshValues } from './check.js';
 import { readCsv, writeCsv } from './csv.js';
-import { readGlb, writeGlb } from './glb.js';
+import { readGlb, writeGlb, type GlbDome } from './glb.js';
 import { readMpcdi, writeMpcdi, type MpcdiOptions } from './mpcdi.js';
 import { readObj, writeObj } from './obj.js';
 import { readMeshPfm, writeMeshPfm } from './pfm.js';
@@ -23,13 +23,15 @@ export interface EncodeMeshOptions {
   mpcdi?: MpcdiOptions;
   /** The exact fields at every projector pixel centre: the MPCDI alpha map and the PNG map are then written per pixel. */
   pixels?: PixelFields;
+  /** An as-built dome's triangles, for the formats that carry them (.glb). */
+  dome?: GlbDome;
 }
 
 /** The mesh as the bytes of a file in the given format (text formats UTF-8). */
 export async function encodeMesh(mesh: WarpMesh, format: MeshFormat, options: EncodeMeshOptions = {}): Promise<Uint8Array> {
   switch (format) {
     case 'glb':
-      return writeGlb(mesh);
+      return writeGlb(mesh, options.dome);
     case 'obj':
       return new TextEncoder().encode(writeObj(mesh));
     case 'pfm':

@@ -3,7 +3,7 @@
  * right): a per-cell figure (resolution, brightness) coloured per pixel and embedded as a raster,
  * with the altitude rings, azimuth spokes, labels and colour scale drawn as vectors.
  */
-import { azAltFromDirection, DEG, domePointFromEye, fisheyeToDirection, locateDirection, segmentHitsBody, type RigAnalysis, type Vec3 } from '@skyfold/warp-core';
+import { azAltFromDirection, DEG, domePointSeen, fisheyeToDirection, locateDirection, segmentHitsBody, type RigAnalysis, type Vec3 } from '@skyfold/warp-core';
 import { dusk, PALETTE, type Rgb8 } from './colormap.js';
 import { placeLabel, placeLabelIfClear, type Anchor } from './label-placer.js';
 import { rasterDataUri } from './render.js';
@@ -35,7 +35,8 @@ export function fisheyeLookup(a: RigAnalysis, size: number): FisheyeLookup {
         continue;
       }
       fisheyeToDirection(w, u, v, rig.content.fov);
-      if (domePointFromEye(rig.content.eye, w, rig.dome.radius)[2] < 0) {
+      const seen = domePointSeen(tracer, w);
+      if (seen === null || seen[2] < 0) {
         cell[k] = -3;
         continue;
       }

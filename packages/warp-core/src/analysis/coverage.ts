@@ -5,14 +5,14 @@
  * azimuth × zenith-angle grid and sent through the inverse, `locateDirection`).
  */
 import { directionFromAzAlt, RAD } from '../math.js';
-import { domePointFromEye, locateDirection } from '../locate.js';
+import { domePointSeen, locateDirection } from '../locate.js';
 import type { Tracer } from '../trace.js';
 import { segmentHitsBody } from './body.js';
 
 /** Does the ray from the eye along w meet the dome at or above the springline? */
 function onDome(tracer: Tracer, az: number, alt: number): boolean {
-  const D = domePointFromEye(tracer.rig.content.eye, directionFromAzAlt(az, alt), tracer.rig.dome.radius);
-  return D[2] >= 0;
+  const D = domePointSeen(tracer, directionFromAzAlt(az, alt));
+  return D !== null && D[2] >= 0;
 }
 
 function isOrigin(e: readonly number[]): boolean {
@@ -26,7 +26,7 @@ function isOrigin(e: readonly number[]): boolean {
  */
 export function contentSolidAngle(tracer: Tracer): number {
   const half = Math.min(tracer.rig.content.fov / 2, Math.PI);
-  if (isOrigin(tracer.rig.content.eye)) return 2 * Math.PI * (1 - Math.cos(Math.min(half, Math.PI / 2)));
+  if (isOrigin(tracer.rig.content.eye) && !tracer.rig.dome.mesh) return 2 * Math.PI * (1 - Math.cos(Math.min(half, Math.PI / 2)));
   const nAz = 360;
   const nT = 720;
   const dT = half / nT;

@@ -259,12 +259,27 @@ function pointPosition(rig: Rig, p: PointRef): Vec3 {
     case 'projector.lens':
       return [...rig.projector.position];
     case 'zenith':
-      return [0, 0, R];
-    case 'rim':
-      return [R * Math.sin(p.azimuth), R * Math.cos(p.azimuth), 0];
+      return onMesh(rig, [0, 0, 1]) ?? [0, 0, R];
+    case 'rim': {
+      const d: Vec3 = [Math.sin(p.azimuth), Math.cos(p.azimuth), 0];
+      return onMesh(rig, d) ?? [R * d[0], R * d[1], 0];
+    }
     case 'floor':
       throw new Error('floor is a plane, not a point');
   }
+}
+
+/**
+ * On an as-built dome, the mesh point seen from the springline centre along unit d (where a tape to
+ * "zenith" or "rim@AZ" ends), or undefined on a sphere or where the mesh has an opening.
+ */
+function onMesh(rig: Rig, d: Vec3): Vec3 | undefined {
+  const mesh = rig.dome.mesh;
+  if (!mesh) return undefined;
+  // a hair above the springline, so a ring of vertices exactly at z = 0 is met
+  const o: Vec3 = [0, 0, d[2] === 0 ? 1e-9 : 0];
+  const s = mesh.firstHit(o, d);
+  return s < 0 ? undefined : [o[0] + s * d[0], o[1] + s * d[1], o[2] + s * d[2]];
 }
 
 /** The rig's value of a tape distance, metres. */
@@ -327,7 +342,9 @@ export function extendedPixelDirection(rig: Rig, frame: ProjectorFrame, x: numbe
       d = [ray[0] - k * n[0], ray[1] - k * n[1], ray[2] - k * n[2]];
     }
   }
-  const s = Math.max(0, rayDomeExit(o, d, rig.dome.radius));
+  // on an as-built dome the mesh where the light meets it, else (an opening, a miss) the nominal sphere
+  const sm = onMirror && rig.dome.mesh ? rig.dome.mesh.firstHit(o, d) : -1;
+  const s = sm >= 0 ? sm : Math.max(0, rayDomeExit(o, d, rig.dome.radius));
   const e = rig.content.eye;
   const w = normalize([o[0] + s * d[0] - e[0], o[1] + s * d[1] - e[1], o[2] + s * d[2] - e[2]]);
   out[0] = w[0];
