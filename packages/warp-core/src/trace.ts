@@ -151,6 +151,9 @@ export class Tracer {
     const bvh = this.gridBvh;
     const anyHit = this.meshHoldsMirror;
     const portalStart = this.portalStart;
+    const tri = bvh?.triangles ?? new Float64Array(0);
+    let hint = -1;
+    let hintOpen = false;
     const [ex, ey, ez] = content.eye;
     const invFov = 1 / content.fov;
     const { u, v, kind, point, mirrorDistance } = out;
@@ -200,8 +203,45 @@ export class Tracer {
           const sb = Xx * rx + Xy * ry + Xz * rz;
           s = -sb + Math.sqrt(sb * sb - (Xx * Xx + Xy * Xy + Xz * Xz - R2));
         } else {
-          s = bvh.firstHit(Xx, Xy, Xz, rx, ry, rz, 1e-9, Infinity, anyHit);
-          if (s < 0 || bvh.hitTriangle >= portalStart) {
+          // from inside a convex mesh the last pixel's triangle usually answers: tested here, inline
+          s = -1;
+          let open = false;
+          if (anyHit && hint >= 0) {
+            const q = 9 * hint;
+            const e1x = tri[q + 3], e1y = tri[q + 4], e1z = tri[q + 5];
+            const e2x = tri[q + 6], e2y = tri[q + 7], e2z = tri[q + 8];
+            const hx = ry * e2z - rz * e2y;
+            const hy = rz * e2x - rx * e2z;
+            const hz = rx * e2y - ry * e2x;
+            const det = e1x * hx + e1y * hy + e1z * hz;
+            if (det !== 0) {
+              const inv = 1 / det;
+              const sx = Xx - tri[q], sy = Xy - tri[q + 1], sz = Xz - tri[q + 2];
+              const bu = (sx * hx + sy * hy + sz * hz) * inv;
+              if (bu >= 0 && bu <= 1) {
+                const qx = sy * e1z - sz * e1y;
+                const qy = sz * e1x - sx * e1z;
+                const qz = sx * e1y - sy * e1x;
+                const bv = (rx * qx + ry * qy + rz * qz) * inv;
+                if (bv >= 0 && bu + bv <= 1) {
+                  const th = (e2x * qx + e2y * qy + e2z * qz) * inv;
+                  if (th > 1e-9) {
+                    s = th;
+                    open = hintOpen;
+                  }
+                }
+              }
+            }
+          }
+          if (s < 0) {
+            s = bvh.firstHit(Xx, Xy, Xz, rx, ry, rz, 1e-9, Infinity, anyHit);
+            open = s < 0 || bvh.hitTriangle >= portalStart;
+            if (s >= 0) {
+              hint = bvh.hitSlot;
+              hintOpen = open;
+            }
+          }
+          if (open) {
             kind[k] = 3;
             u[k] = NaN_;
             v[k] = NaN_;

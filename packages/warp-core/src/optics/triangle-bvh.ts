@@ -28,8 +28,9 @@ export class TriangleBvh {
   readonly order: Uint32Array;
   readonly nodeCount: number;
   readonly depth: number;
-  /** The input index of the triangle the last `firstHit` found (−1 for none), and its barycentrics. */
+  /** The input index of the triangle the last `firstHit` found (−1 for none), its leaf slot, and its barycentrics. */
   hitTriangle = -1;
+  hitSlot = -1;
   hitU = 0;
   hitV = 0;
   private readonly stack: Int32Array;
@@ -546,6 +547,7 @@ export class TriangleBvh {
 
   private finish(hit: number, hu: number, hv: number, best: number): number {
     if (hit >= 0) this.lastSlot = hit;
+    this.hitSlot = hit;
     this.hitTriangle = hit < 0 ? -1 : this.order[hit];
     this.hitU = hu;
     this.hitV = hv;
