@@ -10,6 +10,7 @@ import { registerFit } from './commands/fit.js';
 import { registerPattern } from './commands/pattern.js';
 import { registerReport } from './commands/report.js';
 import { registerPlan } from './commands/plan.js';
+import { registerGeodesic } from './commands/geodesic.js';
 import { EXIT_BAD_INPUT, EXIT_INTERNAL, EXIT_OK, UserError } from './errors.js';
 import { runContext, withRunContext, writeErr, writeOut, type RunIO } from './io/run-context.js';
 import { VERSION } from './version.js';
@@ -38,6 +39,7 @@ export function buildProgram(): Command {
   registerFit(program);
   registerReport(program);
   registerPlan(program);
+  registerGeodesic(program);
   for (const c of program.commands) c.exitOverride();
   return program;
 }

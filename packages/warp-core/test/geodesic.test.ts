@@ -60,4 +60,13 @@ describe('geodesic domes (Kenner 1976)', () => {
     expect(soup.indices).toEqual(d.indices);
     for (let i = 0; i < d.positions.length; i++) expect(Math.abs(soup.positions[i] - d.positions[i])).toBeLessThan(1e-9);
   });
+
+  it('the usual cuts by fraction of the height: 3V 3/8 and 5/8 are the 75- and 105-triangle domes, 4V 1/2 the 160 (Kenner 1976)', () => {
+    const faces = (nu: number, f: number) => geodesicDome({ frequency: nu, radius: 1, keepFraction: f }).sphereTriangles;
+    expect(faces(3, 3 / 8)).toBe(75);
+    expect(faces(3, 5 / 8)).toBe(105);
+    expect(faces(4, 1 / 2)).toBe(160);
+    expect(faces(2, 1 / 2)).toBe(40);
+    expect(faces(3, 1)).toBe(180);
+  });
 });

@@ -15,6 +15,12 @@ export interface GeodesicOptions {
   radius: number;
   /** Keep the faces whose three corners are all at or above this height (metres; default −radius: all). */
   keepAbove?: number;
+  /**
+   * Instead of keepAbove: keep the faces whose centre (the mean of its corners) lies in the top fraction f
+   * of the sphere's height, at or above R(1 − 2f): 1/2 a hemisphere, 3/8 and 5/8 the usual cuts of odd
+   * frequencies (a 3V gives its 75- and 105-triangle domes).
+   */
+  keepFraction?: number;
   /** A vertical wall from the base ring's edges down to this height (metres, below the base). */
   skirtTo?: number;
   /** Turns the whole pattern about the vertical axis, radians (toward +x from +y). */
@@ -126,9 +132,12 @@ export function geodesicDome(o: GeodesicOptions): GeodesicDome {
   }
   // keep the faces at or above the cut (a hair of slack for hubs exactly on it)
   const cut = (o.keepAbove ?? -R) / R - 1e-9;
+  const centreCut = o.keepFraction === undefined ? undefined : 1 - 2 * o.keepFraction - 1e-9;
   const kept: number[] = [];
   for (let t = 0; t < tris.length; t += 3) {
-    if (unit[3 * tris[t] + 2] >= cut && unit[3 * tris[t + 1] + 2] >= cut && unit[3 * tris[t + 2] + 2] >= cut) kept.push(tris[t], tris[t + 1], tris[t + 2]);
+    const za = unit[3 * tris[t] + 2], zb = unit[3 * tris[t + 1] + 2], zc = unit[3 * tris[t + 2] + 2];
+    const keep = centreCut === undefined ? za >= cut && zb >= cut && zc >= cut : (za + zb + zc) / 3 >= centreCut;
+    if (keep) kept.push(tris[t], tris[t + 1], tris[t + 2]);
   }
   if (kept.length === 0) throw new RangeError('no face lies at or above the cut');
   // renumber the hubs the kept faces use
