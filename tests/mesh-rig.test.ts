@@ -114,6 +114,11 @@ describe('every command on a mesh-dome rig', () => {
     const r = await ok('report', at('rig.json'), '-o', at('report'), '--rays', '4000', '--json');
     const f = JSON.parse(r.stdout);
     expect(f.coverage).toBeDefined();
+    // the facets: how far the nominal sphere would misplace content on this 2V mesh
+    expect(f.facets.samples).toBeGreaterThan(1000);
+    expect(f.facets.worstDegrees).toBeGreaterThanOrEqual(f.facets.medianDegrees);
+    expect(f.facets.medianDegrees).toBeGreaterThan(0.5); // a 2V dome is coarser than the 3V at 0.9°
+    expect(readFileSync(at('report/report.html'), 'utf8')).toMatch(/The dome as built/);
     expect(existsSync(at('report/report.html'))).toBe(true);
   });
 

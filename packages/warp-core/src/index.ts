@@ -15,6 +15,7 @@ export { rigWarnings } from './rig/warnings.js';
 
 export { pixelToRay, rayToPixel, projectorFrame, type ProjectorFrame } from './optics/projector.js';
 export { directionToFisheye, fisheyeToDirection } from './optics/fisheye.js';
+export { facetFigures, type FacetFigures } from './analysis/facets.js';
 export { DomeMesh, MAX_DOME_TRIANGLES, meshNominalRadius, openUpwardRays, type DomeMeshSource, type TriangleSoup } from './optics/dome-mesh.js';
 export { MeshFileError, parseTriangleFile, triangleFileFormat, type TriangleFileFormat } from './optics/dome-mesh-files.js';
 export { TriangleBvh } from './optics/triangle-bvh.js';

@@ -93,7 +93,7 @@ describe('analyzeRig on the demo rig', () => {
   const f = a.figures;
 
   it('gives every figure under stable keys', () => {
-    expect(Object.keys(f)).toEqual(['rig', 'coverage', 'pixels', 'resolution', 'brightness', 'spill', 'focus', 'safety']);
+    expect(Object.keys(f)).toEqual(['rig', 'coverage', 'pixels', 'resolution', 'brightness', 'spill', 'focus', 'safety', 'facets']);
     expect(f.coverage.byAzimuth.length).toBe(36);
     expect(f.resolution.unit).toBe('arcmin per projector pixel');
   });

@@ -31,6 +31,11 @@ export function reportSummary(f: ReportFigures): string[] {
     `focus           mirror ${L(f.focus.depth.near)} to ${L(f.focus.depth.far)} from the lens (${L(f.focus.depth.range)} deep); focus at ${L(f.focus.bestFocus)}${f.focus.blur ? `; blur ${n(f.focus.blur.pixelsP95)} px (95%)` : ''}`,
     ...f.focus.warnings.map((w) => `focus warning   ${w}`),
     ...f.safety.findings.map((x) => `safety ${x.level.padEnd(8)} ${x.text}`),
+    ...(f.facets
+      ? [
+          `as built        the sphere of dome.radius would misplace content by ${n(f.facets.medianDegrees)}° median, ${n(f.facets.worstDegrees)}° worst (${n(f.facets.medianMasterPx, 1)} and ${n(f.facets.worstMasterPx, 1)} px of a ${f.facets.masterSize}² dome master) on this mesh`,
+        ]
+      : []),
   ];
   return lines;
 }
@@ -42,7 +47,7 @@ export function registerReport(program: Command): void {
     .argument('<rig>', 'rig file (YAML or JSON), or a .glb baked by skyfold')
     .requiredOption('-o, --output <dir>', 'folder for report.html, report.json and the PNG pictures')
     .option('--rays <n>', 'about how many projector-frame points to trace', (s) => parsePositiveInt(s), REPORT_DEFAULTS.vertices)
-    .option('--json', 'print every figure as JSON (stable keys: coverage, pixels, resolution, brightness, spill, focus, safety)')
+    .option('--json', 'print every figure as JSON (stable keys: coverage, pixels, resolution, brightness, spill, focus, safety, facets)')
     .addHelpText('after', '\nExamples:\n  skyfold report rig.yaml -o report/\n  skyfold report rig.yaml -o report/ --json > figures.json')
     .action(async (rigPath: string, opts: { output: string; rays: number; json?: boolean }) => {
       const rig = readRig(rigPath);

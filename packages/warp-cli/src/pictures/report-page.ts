@@ -210,6 +210,16 @@ ${row('Blur at best focus', fo.blur ? `${num(fo.blur.pixelsP95)} px (95%), ${num
 ${fo.warnings.map((w) => row('Warning', w)).join('\n')}
 </table>
 
+${
+  f.facets
+    ? `<h2>The dome as built</h2>
+<table>
+${row('Sphere model misplaces content by', `${num(f.facets.medianDegrees)}° median, ${num(f.facets.worstDegrees)}° worst`, `${num(f.facets.medianMasterPx)} and ${num(f.facets.worstMasterPx)} px of a ${f.facets.masterSize}² dome master`)}
+</table>
+<p class="note">The rig traces the mesh (dome.mesh); this is how far the nominal sphere of dome.radius would put the light instead, seen from the content's eye, over ${f.facets.samples} lit points.</p>
+`
+    : ''
+}
 <footer>Figures from a coarse trace of the projector frame and a sampling of dome directions; see the JSON file for every figure under stable keys.
 Colour map: skyfold “dusk”, lightness rising evenly from dark (low) to light (high).</footer>
 </main>

@@ -7,6 +7,7 @@ import { Tracer } from '../trace.js';
 import { brightnessFigures, type BrightnessFigures } from './brightness.js';
 import { contentSolidAngle, coverageFromDirections, type AzimuthCoverage, type DirectionCoverageOptions } from './coverage.js';
 import { focusFigures, type FocusFigures } from './focus.js';
+import { facetFigures, type FacetFigures } from './facets.js';
 import { cellArcmin, resolutionFigures, type ResolutionFigures } from './resolution.js';
 import { safetyFigures, type SafetyFigures, type SafetyZones } from './safety.js';
 import { cellFields, Fate, sampleFrame, type CellFields, type FrameSample } from './sample.js';
@@ -47,6 +48,8 @@ export interface ReportFigures {
   spill: SpillFigures;
   focus: FocusFigures;
   safety: SafetyFigures;
+  /** On an as-built dome: how far the nominal sphere would misplace content (null on a sphere). */
+  facets: FacetFigures | null;
 }
 
 export interface RigAnalysis {
@@ -109,6 +112,7 @@ export function analyzeRig(rig: Rig, options: Partial<ReportOptions> = {}): RigA
     spill: spillFigures(sample),
     focus: focusFigures(sample, vertexFromCells(sample, arcmin)),
     safety: safety.figures,
+    facets: facetFigures(rig),
   };
   return { figures, sample, cells, arcmin, safetyZones: safety.zones };
 }
