@@ -45,6 +45,13 @@ skyfold('bake', rig, '-o', 'demo-out/mesh/demo.glb', '-o', 'demo-out/mesh/demo.m
 const warpStatus = skyfold('warp', rig, 'demo-out/show', '-o', 'demo-out/warped');
 skyfold('simulate', rig, 'demo-out/warped/alignment_grid.png', '-o', 'demo-out/seen_alignment_grid.png', '--size', '768');
 skyfold('report', rig, '-o', 'demo-out/report');
+
+// a second rig, on an as-built dome: a school's 4V geodesic on a low wall, in feet and inches
+const school = 'fixtures/school-dome-rig.yaml';
+console.log('\nA second rig: Maple Hollow Elementary, an 18 ft 4V geodesic dome on a 2 ft wall (invented); its mesh fixtures/school-dome.obj');
+skyfold('bake', school, '-o', 'demo-out/school/school.glb');
+skyfold('warp', school, 'demo-out/show/alignment_grid.png', '-o', 'demo-out/school/warped');
+skyfold('report', school, '-o', 'demo-out/school/report', '--rays', '30000');
 console.log(`
 Done. Look in demo-out/:
   show/       the dome-master frames
@@ -52,6 +59,8 @@ Done. Look in demo-out/:
   warped/     the pre-warped projector frames (1920x1200) to play through the mirror
   seen_alignment_grid.png   what the audience would see of the warped grid
   report/     coverage, resolution, brightness, focus and safety: open demo-out/report/report.html
+  school/     the second rig (a geodesic dome as built): its .glb (with the dome's triangles), the
+              warped alignment grid, and its report, which says how far a sphere would misplace content
 
 Safety: never look into the beam (it crosses the dome at eye height); secure the mirror and its stand
 so they cannot tip; keep aisles and exits clear in the dark; mind hot equipment and cables; local fire

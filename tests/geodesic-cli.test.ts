@@ -6,7 +6,7 @@ import { describe, expect, it } from 'vitest';
 import { existsSync, readFileSync, writeFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { parseTriangleFile } from '@skyfold/warp-core';
-import { skyfold, tempDir } from './support.js';
+import { FIXTURES, skyfold, tempDir } from './support.js';
 
 const dir = tempDir('geodesic');
 const at = (name: string) => join(dir, name);
@@ -104,5 +104,21 @@ describe('skyfold geodesic', () => {
     expect(r.code).toBe(2);
     expect(readFileSync(at('taken.obj'), 'utf8')).toBe('keep me\n');
     expect((await skyfold(['geodesic', at('taken.obj'), '--frequency', '2', '--radius', '1', '--force'])).code).toBe(0);
+  });
+
+  it('the school demo rig\'s mesh is what its header command writes, and the rig loads without a warning', async () => {
+    const rigText = readFileSync(join(FIXTURES, 'school-dome-rig.yaml'), 'utf8');
+    const command = /^#\s+skyfold (geodesic fixtures\/school-dome\.obj .*)$/m.exec(rigText)![1];
+    const args = command.match(/"[^"]*"|\S+/g)!.map((a) => a.replace(/^"|"$/g, ''));
+    args[1] = at('school-again.obj');
+    const r = await skyfold(args);
+    expect(r.code, r.stderr).toBe(0);
+    // the same triangles (the comment lines name the output file, so compare the geometry)
+    const geometry = (t: string) => t.split('\n').filter((l) => !l.startsWith('#')).join('\n');
+    expect(geometry(readFileSync(at('school-again.obj'), 'utf8'))).toBe(geometry(readFileSync(join(FIXTURES, 'school-dome.obj'), 'utf8')));
+    const probe = await skyfold(['probe', join(FIXTURES, 'school-dome-rig.yaml'), '--pixel', '960,200', '--json']);
+    expect(probe.code, probe.stderr).toBe(0);
+    expect(probe.stderr).toBe('');
+    expect(JSON.parse(probe.stdout).results[0].hit).toBe('dome');
   });
 });

@@ -1,4 +1,5 @@
 /** `skyfold geodesic`: a class I icosahedral geodesic dome as an OBJ for `dome.mesh`, and its build sheet. */
+import { basename } from 'node:path';
 import { InvalidArgumentError, Option, type Command } from 'commander';
 import { DEG, formatLength, geodesicDome, geodesicObj, isLengthUnit, LengthSyntaxError, METRES_PER_UNIT, parseLengthString, type GeodesicDome, type LengthUnit } from '@skyfold/warp-core';
 import { UserError } from '../errors.js';
@@ -90,7 +91,7 @@ export function registerGeodesic(program: Command): void {
         out,
         geodesicObj(dome, 1 / METRES_PER_UNIT[units], [
           `skyfold geodesic: ${title}${skirtTo !== undefined ? `, skirt to ${formatLength(skirtTo, units)}` : ''}`,
-          `units: ${units} (in a rig file: dome.mesh: ${out}, with dome.meshUnits: ${units} if the rig's units differ)`,
+          `units: ${units} (in a rig file: dome.mesh: ${basename(out)}, as a path from the rig file's folder, with dome.meshUnits: ${units} if the rig's units differ)`,
           'frame: origin at the centre of the springline circle, +z up, azimuth 0 toward +y, 90 toward +x',
         ]),
       );
