@@ -34,11 +34,16 @@ export class LengthSyntaxError extends Error {
   }
 }
 
-const TERM = /^\s*(\d+(?:\.\d*)?|\.\d+)(?:e([+-]?\d+))?\s*([A-Za-z]+|['"′″])?/;
+/**
+ * One term: a whole number and a fraction ("1 1/2"), a fraction ("3/4"), or a decimal ("2.4", "1e3");
+ * then its unit. Groups: 1–3 mixed, 4–5 fraction, 6–7 decimal and exponent, 8 the unit.
+ */
+const TERM = /^\s*(?:(\d+)\s+(\d+)\s*\/\s*(\d+)|(\d+)\s*\/\s*(\d+)|(\d+(?:\.\d*)?|\.\d+)(?:e([+-]?\d+))?)\s*([A-Za-z]+|['"′″])?/;
 
 /**
- * Parses "7 ft 6 in", "-3 in", "2.4m", "35 cm", `7'6"` to metres. Each term needs a unit; a leading
- * minus applies to the whole length. Throws LengthSyntaxError.
+ * Parses "7 ft 6 in", "-3 in", "2.4m", "35 cm", `7'6"` to metres, and lengths as a tape shows them:
+ * "9 ft 1 1/2 in", "3/4 in", `5' 3 1/4"`. Each term needs a unit, except a plain zero ("0"); a
+ * leading minus applies to the whole length. Throws LengthSyntaxError.
  */
 export function parseLengthString(text: string): number {
   let rest = text.trim();
@@ -50,13 +55,22 @@ export function parseLengthString(text: string): number {
     rest = rest.slice(1);
   }
   if (rest.trim() === '') throw new LengthSyntaxError('no number');
+  // zero is zero in every unit
+  if (/^\s*(0+(\.0*)?|\.0+)\s*$/.test(rest)) return 0;
   let total = 0;
   let terms = 0;
   while (rest.trim() !== '') {
     const m = TERM.exec(rest);
     if (!m) throw new LengthSyntaxError('not a length');
-    const value = Number(m[1]) * (m[2] ? 10 ** Number(m[2]) : 1);
-    const unitText = m[3];
+    let value: number;
+    if (m[1] !== undefined || m[4] !== undefined) {
+      const whole = m[1] !== undefined ? Number(m[1]) : 0;
+      const num = Number(m[1] !== undefined ? m[2] : m[4]);
+      const den = Number(m[1] !== undefined ? m[3] : m[5]);
+      if (den === 0) throw new LengthSyntaxError('a fraction with 0 below the line');
+      value = whole + num / den;
+    } else value = Number(m[6]) * (m[7] ? 10 ** Number(m[7]) : 1);
+    const unitText = m[8];
     if (unitText === undefined) throw new LengthSyntaxError('a number in a string needs a unit');
     const unit = UNIT_ALIASES[unitText.toLowerCase()] ?? UNIT_ALIASES[unitText];
     if (unit === undefined) throw new LengthSyntaxError(`unknown unit "${unitText}"`, unitText);

@@ -109,6 +109,31 @@ describe('lengths with units', () => {
     expect(() => parseLengthString('')).toThrow(LengthSyntaxError);
   });
 
+  it('lengths as a tape shows them: fractions of an inch, a mixed number, feet and inch marks, a bare zero', () => {
+    // 1 in = 0.0254 m and 1 ft = 0.3048 m exactly (the international yard and pound agreement, 1959)
+    expect(parseLengthString('9 ft 1 1/2 in')).toBeCloseTo(9 * 0.3048 + 1.5 * 0.0254, 14);
+    expect(parseLengthString('3/4 in')).toBeCloseTo(0.75 * 0.0254, 15);
+    expect(parseLengthString(`5' 3 1/4"`)).toBeCloseTo(5 * 0.3048 + 3.25 * 0.0254, 14);
+    expect(parseLengthString('-2 ft 6 1/2 in')).toBeCloseTo(-(2 * 0.3048 + 6.5 * 0.0254), 14);
+    expect(parseLengthString('0')).toBe(0);
+    expect(parseLengthString('-0')).toBe(0);
+    expect(() => parseLengthString('1/0 in')).toThrow('a fraction with 0 below the line');
+    expect(() => parseLengthString('1 1/2')).toThrow('a number in a string needs a unit');
+  });
+
+  it('a rig file takes tape lengths and a quoted "0" wherever it takes a length', () => {
+    const rig = rigFromDocument({
+      units: 'ft',
+      dome: { radius: '8 ft 1 1/2 in' },
+      mirror: { radius: '7 7/8 in', center: ['0', `-5' 3 1/4"`, '9 3/4 in'], axis: [0, 1, 0] },
+      projector: { position: ['0', '-2 ft 3 1/2 in', '6 in'], lookAt: ['0', '-5 ft 3 in', '1 ft'], resolution: [1600, 900], throwRatio: 1.4 },
+    });
+    expect(rig.dome.radius).toBeCloseTo(8 * 0.3048 + 1.5 * 0.0254, 14);
+    expect(rig.mirror.radius).toBeCloseTo(7.875 * 0.0254, 14);
+    expect(rig.mirror.center[0]).toBe(0);
+    expect(rig.mirror.center[1]).toBeCloseTo(-(5 * 0.3048 + 3.25 * 0.0254), 14);
+  });
+
   it('bare numbers are in the document units: units ft, dome.radius 8 → 2.4384 m', () => {
     const rig = rigFromDocument({
       units: 'ft',
