@@ -14,6 +14,7 @@ import { runContext, setExitCode, writeErr } from '../io/run-context.js';
 import type { MapSettings, MapSource } from '../warp/map-source.js';
 import { Progress } from '../warp/progress.js';
 import { stopOnSignals } from '../warp/stop-signal.js';
+import type { BatchSummary } from '../warp/summary.js';
 import { warn } from '../messages.js';
 import { planCarry } from './carry.js';
 import { StderrTail } from './child.js';
@@ -30,14 +31,7 @@ export interface VideoWarpOptions extends VideoEncodeOptions {
   progress: boolean;
 }
 
-export interface VideoWarpSummary {
-  done: number;
-  skipped: number;
-  failed: number;
-  failures: { input: string; reason: string }[];
-  total: number;
-  output: string;
-  seconds: number;
+export interface VideoWarpSummary extends BatchSummary {
   video: { size: [number, number]; projector: [number, number]; rate: string; codec: string; pixFmt: string; rotation: number };
 }
 
