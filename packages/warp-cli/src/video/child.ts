@@ -48,3 +48,31 @@ export class StderrTail {
     return lines[lines.length - 1] ?? '';
   }
 }
+
+/** A child that is ended when skyfold stops early; `exited` resolves with its code. */
+export interface RunningChild {
+  child: ChildProcess;
+  stderr: StderrTail;
+  exited: Promise<number | null>;
+}
+
+export function startChild(program: string, args: string[], stdin: 'pipe' | 'ignore'): RunningChild {
+  const child = spawn(program, args, { stdio: [stdin, stdin === 'pipe' ? 'ignore' : 'pipe', 'pipe'] });
+  const stderr = new StderrTail(child);
+  const exited = new Promise<number | null>((resolve) => {
+    child.on('error', () => resolve(-1));
+    child.on('close', (code) => resolve(code));
+  });
+  return { child, stderr, exited };
+}
+
+/**
+ * Ends a child early. Its pipes are closed too: a child's 'close' waits for its stdout to reach
+ * its end, which never happens while frames nobody will read sit in the pipe.
+ */
+export function stopChild(r: RunningChild | undefined): void {
+  if (!r) return;
+  r.child.stdout?.destroy();
+  r.child.stdin?.destroy();
+  if (r.child.exitCode === null && r.child.signalCode === null) r.child.kill('SIGKILL');
+}

@@ -4,7 +4,6 @@
  * source's exact rate and start time. The result is written under a temporary name and renamed
  * only when every frame made it.
  */
-import { spawn, type ChildProcess } from 'node:child_process';
 import { renameSync, rmSync, statSync } from 'node:fs';
 import { hostname } from 'node:os';
 import { basename, dirname, join, resolve } from 'node:path';
@@ -17,7 +16,7 @@ import { stopOnSignals } from '../warp/stop-signal.js';
 import type { BatchSummary } from '../warp/summary.js';
 import { warn } from '../messages.js';
 import { planCarry } from './carry.js';
-import { StderrTail } from './child.js';
+import { startChild as start, stopChild as stop, type RunningChild as Running } from './child.js';
 import { planEncode, scaleMatrixName, sourceMatrix, type VideoEncodeOptions } from './encode.js';
 import { FrameReader, TruncatedFrame, writeFlushed } from './frame-stream.js';
 import { type VideoInfo } from './probe.js';
@@ -45,27 +44,6 @@ export function decodeArgs(info: VideoInfo, pixFmt: 'rgb24' | 'rgb48le'): string
   }
   args.push('-f', 'rawvideo', '-pix_fmt', pixFmt, 'pipe:1');
   return args;
-}
-
-/** A child that is ended when skyfold stops early; `exited` resolves with its code. */
-interface Running {
-  child: ChildProcess;
-  stderr: StderrTail;
-  exited: Promise<number | null>;
-}
-
-function start(program: string, args: string[], stdin: 'pipe' | 'ignore'): Running {
-  const child = spawn(program, args, { stdio: [stdin, stdin === 'pipe' ? 'ignore' : 'pipe', 'pipe'] });
-  const stderr = new StderrTail(child);
-  const exited = new Promise<number | null>((resolve) => {
-    child.on('error', () => resolve(-1));
-    child.on('close', (code) => resolve(code));
-  });
-  return { child, stderr, exited };
-}
-
-function stop(r: Running | undefined): void {
-  if (r && r.child.exitCode === null && r.child.signalCode === null) r.child.kill('SIGKILL');
 }
 
 class Stopped extends Error {}
