@@ -34,6 +34,11 @@ export interface PlanOptions {
   maxShadow: number;
   /** Clearance between the projector's lens and the floor, and between parts (metres). */
   clearance: number;
+  /**
+   * Called as the work advances with the steps done of all (every scored candidate and each
+   * re-measurement), last with done = total; the caller draws any progress. Optional.
+   */
+  onProgress?: (done: number, total: number) => void;
 }
 
 export const PLAN_DEFAULTS: Readonly<PlanOptions> = {
@@ -187,14 +192,23 @@ export function planRig(rig: Rig, options: Partial<PlanOptions> = {}): PlanResul
   const coarse: ScoringSettings = { objective: settings.objective, vertices: settings.vertices, depth: 2, clearance: settings.clearance, maxShadow: settings.maxShadow, minCoverage: 0 };
   const fine: ScoringSettings = { ...coarse, vertices: Math.max(settings.vertices, settings.refineVertices), depth: 3 };
   const start = dims.map((d) => Math.min(d.hi, Math.max(d.lo, currentValue(rig, d))));
+  // steps: the current rig's coarse score, the search, the best few and the current rig re-measured
+  const total = 1 + settings.evaluations + settings.keep + 1;
+  let done = 0;
+  const step = () => settings.onProgress?.(Math.min(++done, total - 1), total);
   const minCoverage = 0.9 * (evaluatePlacement(rig, coarse).figures.coverage ?? 0);
+  step();
   const search = differentialEvolution<Evaluation>({
     ranges: dims.map((d) => ({ lo: d.lo, hi: d.hi, periodic: d.name === 'mirror.axis.azimuth' })),
     start,
     evaluations: settings.evaluations,
     seed: settings.seed,
     populationSize: Math.max(12, Math.min(40, 8 * dims.length)),
-    score: (point) => evaluatePlacement(rigWith(rig, dims, point), { ...coarse, minCoverage }),
+    score: (point) => {
+      const evaluation = evaluatePlacement(rigWith(rig, dims, point), { ...coarse, minCoverage });
+      step();
+      return evaluation;
+    },
     better: betterPlacement,
   });
   // the best few distinct feasible candidates, re-measured more finely
@@ -202,10 +216,13 @@ export function planRig(rig: Rig, options: Partial<PlanOptions> = {}): PlanResul
   const best = distinctBest(search.archive, dims, settings.keep)
     .map((entry) => {
       const candidate = rigWith(rig, dims, entry.point);
-      return { rig: candidate, figures: evaluatePlacement(candidate, { ...fine, minCoverage }).figures, values: values(entry.point) };
+      const figures = evaluatePlacement(candidate, { ...fine, minCoverage }).figures;
+      step();
+      return { rig: candidate, figures, values: values(entry.point) };
     })
     .sort((a, b) => (b.figures.score ?? 0) - (a.figures.score ?? 0));
   const current = evaluatePlacement(rig, fine);
+  settings.onProgress?.(total, total);
   if (best.length === 0) notes.push(notice('plan.nothing-lit', 'no placement within the bounds lights the content; widen the search ({option:vary}) or check the rig'));
   const bounds = Object.fromEntries(dims.map((d) => [d.name, [roundFigure(d.lo, 4)!, roundFigure(d.hi, 4)!] as [number, number]]));
   return {
