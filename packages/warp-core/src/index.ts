@@ -25,7 +25,7 @@ export { domePointFromEye, domePointSeen, locateDirection, type LocateFailure, t
 
 export { createMesh, meshVertexPosition, type WarpMesh } from './mesh/mesh.js';
 export { BAKE_DEFAULTS, bakeMesh, type BakeOptions, type BakeResult, type MeshAccuracy } from './mesh/bake.js';
-export { pixelMapFromMesh, pixelMapFromRig, type SourceOrientation } from './mesh/pixel-map.js';
+export { pixelMapFromFillLayout, pixelMapFromMesh, pixelMapFromRig, type AlphaMap, type SourceOrientation } from './mesh/pixel-map.js';
 export { pixelFields, type PixelFieldOptions, type PixelFields } from './mesh/pixel-fields.js';
 export { fillLayoutFromMesh, fillLayoutFromRig, fillSamplePosition, type FillLayoutGrid } from './mesh/fill-layout.js';
 export { REMAP_DEFAULTS, createImageLike, remap } from './remap/remap.js';

@@ -1,8 +1,8 @@
 /** `skyfold warp`: pre-warps dome-master frames for the rig — files, folders, sequences, or a raw video pipe. */
 import { Option, type Command } from 'commander';
-import { BAKE_DEFAULTS, REMAP_DEFAULTS, type RemapFilter } from '@skyfold/warp-core';
+import { BAKE_DEFAULTS, MAX_PROJECTOR_SIDE, REMAP_DEFAULTS, type RemapFilter } from '@skyfold/warp-core';
 import { UserError } from '../errors.js';
-import { asOptionParser, parseNumberIn, parsePositiveInt } from '../options.js';
+import { asOptionParser, parseNumberIn, parsePositiveInt, parseSize } from '../options.js';
 import { DEFAULT_MAX_PIXELS, FRAME_FORMATS, type FrameFormat } from '../io/image-codec.js';
 import { warpFrames } from '../warp/batch.js';
 import { parseFrameRange, parseShard } from '../warp/inputs.js';
@@ -35,13 +35,14 @@ interface WarpOptions {
   crf?: number;
   preset?: string;
   json?: boolean;
+  projectorSize?: [number, number];
 }
 
 export function registerWarp(program: Command): void {
   program
     .command('warp')
     .description('pre-warp dome-master frames (files, folders, numbered sequences) for the rig, in parallel and resumable')
-    .argument('<rig-or-mesh>', 'rig file (exact per-pixel trace) or baked mesh (.glb)')
+    .argument('<rig-or-mesh>', 'rig file (exact per-pixel trace) or baked mesh (.glb .obj .pfm .mpcdi .png .csv)')
     .argument('[inputs...]', 'image files, folders (natural order) or sequences such as show/frame_%05d.png')
     .option('-o, --output <dir>', 'output folder (never an input folder); for a video input, the output video file')
     .addOption(new Option('--format <format>', "output format (default: each input's own)").choices([...FRAME_FORMATS]))
@@ -64,15 +65,18 @@ export function registerWarp(program: Command): void {
     .option('--crf <n>', 'quality of a warped h264, hevc or vp9 video, lower is better (default 18; vp9 24)', parseNumberIn(0, 63))
     .option('--preset <name>', 'x264/x265 speed preset of a warped video (default medium)')
     .option('--ffmpeg <path>', 'the ffmpeg program to run for video (ffprobe beside it); default SKYFOLD_FFMPEG, else the PATH')
+    .option('--projector-size <WxH>', 'the projector resolution a .pfm or .png mesh spans (those files do not say it)', parseSize({ min: 1, what: 'WxH, the projector resolution in pixels (e.g. 1920x1200)', max: { value: MAX_PROJECTOR_SIDE, why: 'the largest projector side skyfold reads' } }))
     .option('--json', 'print a JSON summary')
     .addHelpText(
       'after',
       '\nExamples:\n  skyfold warp rig.yaml show/ -o warped/\n  skyfold warp rig.yaml show.mp4 -o warped.mp4\n  skyfold warp mesh.glb "show/frame_%05d.png" -o warped/ --frames 1-500 --jobs 4\n' +
+        '  skyfold warp mesh.pfm show/ -o warped/ --projector-size 1920x1200\n' +
         '  skyfold warp rig.yaml show/ -o /shared/warped --shard 3/8\n' +
         '  ffmpeg -i show.mp4 -f rawvideo -pix_fmt rgb24 - | skyfold warp rig.yaml --raw-in 4096x4096 | ffmpeg -f rawvideo -pix_fmt rgb24 -s 1920x1200 -r 30 -i - out.mp4',
     )
     .action(async (source: string, inputs: string[], opts: WarpOptions, cmd: Command) => {
-      const map = await loadMapSource(source);
+      const map = await loadMapSource(source, undefined, { projectorSize: opts.projectorSize });
+      if (map.kind === 'rig' && opts.projectorSize) throw new UserError('--projector-size: only for a .pfm or .png mesh; a rig gives its own projector.resolution');
       const rotate = Number(opts.rotate) as 0 | 90 | 180 | 270;
       const mapSettings: MapSettings = { brightness: opts.brightness, brightnessFloor: opts.brightnessFloor, feather: opts.feather, flip: opts.flip, rotate, ...(opts.nonSquare ? { nonSquare: true } : {}) };
       if (map.kind === 'mesh') {

@@ -1,9 +1,13 @@
-/** Where a warp's map comes from: an exact per-pixel trace of a rig, or a baked mesh (.glb). */
+/** Where a warp's map comes from: an exact per-pixel trace of a rig, or a baked mesh in any format bake writes. */
 import { createHash } from 'node:crypto';
-import { BAKE_DEFAULTS, pixelMapFromMesh, pixelMapFromRig, rigToDocument, type RemapMap, type SourceOrientation, type WarpMesh, type Rig } from '@skyfold/warp-core';
+import { BAKE_DEFAULTS, pixelMapFromFillLayout, pixelMapFromMesh, type AlphaMap, type FillLayoutGrid, pixelMapFromRig, rigToDocument, type RemapMap, type SourceOrientation, type WarpMesh, type Rig } from '@skyfold/warp-core';
 import { readBinaryFile, readRig } from '../io/document-file.js';
 import { UserError } from '../errors.js';
-import { readGlb } from '../export/glb.js';
+import { decodeMesh, formatFromPath, type MeshFormat } from '../export/index.js';
+import { checkMeshValues } from '../export/check.js';
+import { readMpcdi } from '../export/mpcdi.js';
+import { readMeshPfm } from '../export/pfm.js';
+import { readMapPng } from '../export/png16.js';
 import { cachedMap, mapCacheDir, mapCacheKey } from './map-cache.js';
 import { runContext } from '../io/run-context.js';
 
@@ -29,6 +33,8 @@ export function checkSquare(size: readonly [number, number], s: MapSettings): vo
 
 export interface MapSource {
   kind: 'rig' | 'mesh';
+  /** The mesh file's format (kind 'mesh'). */
+  format?: MeshFormat;
   /** Projector resolution. */
   width: number;
   height: number;
@@ -41,32 +47,83 @@ export interface MapSource {
 
 const bytesOf = (a: Float64Array | Uint32Array) => new Uint8Array(a.buffer, a.byteOffset, a.byteLength);
 
-/** `cacheDir`: where maps traced from a rig are kept between runs (undefined: not kept); see map-cache.ts. */
-export async function loadMapSource(path: string, cacheDir: string | undefined = mapCacheDir(runContext().env)): Promise<MapSource> {
-  if (path.toLowerCase().endsWith('.glb')) {
-    const bytes = readBinaryFile(path, 'mesh');
-    let mesh: WarpMesh;
-    try {
-      mesh = await readGlb(bytes);
-    } catch (e) {
-      throw new UserError(`${path}: not a skyfold warp mesh: ${(e as Error).message.split('\n')[0]}`);
+export interface MapSourceOptions {
+  /**
+   * The projector resolution a mesh file spans, for the formats that do not carry it (.pfm and the
+   * vertex-grid .png); checked against the file for those that do.
+   */
+  projectorSize?: [number, number];
+}
+
+/** What a mesh file read for warping yields: the grid, or for .mpcdi the fill-layout warp and its alpha map. */
+type ReadMesh = { mesh: WarpMesh; fill?: undefined } | { mesh: WarpMesh; fill: { warp: FillLayoutGrid; alpha: AlphaMap } };
+
+/** Formats that keep brightness apart from the mask, so `--brightness 0` can drop it. */
+const SEPARATE_BRIGHTNESS: readonly MeshFormat[] = ['glb', 'obj', 'png', 'csv'];
+
+/** Formats whose files do not say the projector resolution. */
+const SIZELESS: readonly MeshFormat[] = ['pfm', 'png'];
+
+async function readMeshForWarp(path: string, format: MeshFormat, bytes: Uint8Array, size: [number, number] | undefined): Promise<ReadMesh> {
+  if (SIZELESS.includes(format) && !size) {
+    throw new UserError(`${path}: a .${format} warp mesh does not say the projector's resolution; give it with --projector-size WxH (e.g. 1920x1200)`);
+  }
+  let read: ReadMesh;
+  try {
+    if (format === 'mpcdi') {
+      const m = await readMpcdi(bytes);
+      read = { mesh: m.mesh, fill: { warp: m.warp, alpha: m.alpha } };
+    } else if (format === 'pfm') {
+      const mesh = readMeshPfm(bytes, { width: size![0], height: size![1] });
+      // the third channel is the light factor brightness·mask as one value; a player multiplies by it
+      // as interpolated, so it stands as the brightness with the mask 1 (the reader's 0/1 mask would
+      // apply the edge twice)
+      mesh.mask.fill(1);
+      read = { mesh };
+    } else if (format === 'png') {
+      read = { mesh: await readMapPng(bytes, { width: size![0], height: size![1] }) };
+    } else {
+      read = { mesh: await decodeMesh(bytes, format) };
     }
-    const key = 'mesh:' + createHash('sha256').update(bytes).digest('hex');
+    checkMeshValues(read.mesh);
+  } catch (e) {
+    if (e instanceof UserError) throw e;
+    throw new UserError(`${path}: not a skyfold warp mesh: ${(e as Error).message.split('\n')[0]}`);
+  }
+  const { width, height } = read.mesh;
+  if (size && (size[0] !== width || size[1] !== height)) {
+    throw new UserError(`${path}: the mesh spans a ${width}x${height} projector, not the ${size[0]}x${size[1]} of --projector-size`);
+  }
+  return read;
+}
+
+/**
+ * `cacheDir`: where maps traced from a rig are kept between runs (undefined: not kept); see map-cache.ts.
+ * A mesh file in any format bake writes (.glb .obj .pfm .mpcdi .png .csv) is read back by its reader.
+ */
+export async function loadMapSource(path: string, cacheDir: string | undefined = mapCacheDir(runContext().env), options: MapSourceOptions = {}): Promise<MapSource> {
+  const format = formatFromPath(path);
+  if (format) {
+    const bytes = readBinaryFile(path, 'mesh');
+    const read = await readMeshForWarp(path, format, bytes, options.projectorSize);
+    const mesh = read.mesh;
+    const key = 'mesh:' + createHash('sha256').update(bytes).digest('hex') + (SIZELESS.includes(format) ? ` ${mesh.width}x${mesh.height}` : '');
     return {
       kind: 'mesh',
+      format,
       width: mesh.width,
       height: mesh.height,
       key,
       mesh,
       build(size, s) {
         checkSquare(size, s);
-        const map = pixelMapFromMesh(mesh, size, s);
-        if (s.brightness === 0) {
-          // compensation off: keep only the mask, which the mesh carries separately
-          const m = pixelMapFromMesh({ ...mesh, brightness: new Float32Array(mesh.brightness.length).fill(1) }, size, s);
-          return m;
+        if (s.brightness === 0 && !SEPARATE_BRIGHTNESS.includes(format)) {
+          throw new UserError(`--brightness 0: a .${format} warp mesh holds brightness and mask as one factor, so brightness cannot be turned off; warp from the rig or a .glb`);
         }
-        return map;
+        if (read.fill) return pixelMapFromFillLayout(read.fill.warp, read.fill.alpha, mesh.width, mesh.height, size, s);
+        // compensation off: keep only the mask, which the mesh carries separately
+        const m = s.brightness === 0 ? { ...mesh, brightness: new Float32Array(mesh.brightness.length).fill(1) } : mesh;
+        return pixelMapFromMesh(m, size, s);
       },
     };
   }

@@ -8,6 +8,7 @@ import type { RemapMap } from '../remap/types.js';
 import { HitKind, Tracer } from '../trace.js';
 import { BAKE_DEFAULTS, interpolateCell, type BakeOptions } from './bake.js';
 import { brightnessFactor, contentVisible, domeAreaOnGrid, featherMask, referenceArea } from './field.js';
+import type { FillLayoutGrid } from './fill-layout.js';
 import type { WarpMesh } from './mesh.js';
 
 export type MapOptions = Pick<BakeOptions, 'brightness' | 'brightnessFloor' | 'feather'>;
@@ -114,6 +115,64 @@ export function pixelMapFromMesh(mesh: WarpMesh, size: [number, number], o: Sour
       const m = interpolateCell(mesh.mask, k00, cols, fx, fy, true);
       const b = interpolateCell(mesh.brightness, k00, cols, fx, fy, true);
       gain[k] = m > 0 ? m * b : 0;
+    }
+  }
+  return finishMap(u, v, gain, size, o, W, H);
+}
+
+/** A light factor per projector pixel (an MPCDI alpha map), samples in [0, 1], the top row first. */
+export interface AlphaMap {
+  width: number;
+  height: number;
+  data: ArrayLike<number>;
+}
+
+/**
+ * The RemapMap a player draws from a fill-layout warp grid and an alpha map (VESA MPCDI 2.0 §3.6, as
+ * DESIGN.md records it): at every projector pixel centre the grid is sampled as a GPU samples a
+ * texture (linear filtering, clamp to edge: texel coordinate s·N − 0.5, OpenGL ES 3.0 §3.8.10), the
+ * light factor is the alpha map's pixel there (nearest, when the map is not at the projector's
+ * resolution). Samples without data (NaN) drop out of the filter, the other weights renormalised; a
+ * pixel with none around it is dark.
+ */
+export function pixelMapFromFillLayout(warp: FillLayoutGrid, alpha: AlphaMap, width: number, height: number, size: [number, number], o: SourceOrientation = {}): RemapMap {
+  const { cols: N, rows: M, data } = warp;
+  const W = width;
+  const H = height;
+  const n = W * H;
+  const u = new Float32Array(n);
+  const v = new Float32Array(n);
+  const gain = new Float32Array(n);
+  const texel = (s: number, count: number) => Math.min(count - 1, Math.max(0, s * count - 0.5));
+  for (let j = 0; j < H; j++) {
+    const ty = texel((j + 0.5) / H, M);
+    const j0 = Math.min(M - 2, Math.floor(ty));
+    const fy = ty - j0;
+    const ay = Math.min(alpha.height - 1, Math.floor(((j + 0.5) / H) * alpha.height));
+    for (let i = 0; i < W; i++) {
+      const k = j * W + i;
+      const tx = texel((i + 0.5) / W, N);
+      const i0 = Math.min(N - 2, Math.floor(tx));
+      const fx = tx - i0;
+      let su = 0;
+      let sv = 0;
+      let sw = 0;
+      for (let q = 0; q < 4; q++) {
+        const c = i0 + (q & 1);
+        const r = j0 + (q >> 1);
+        const w = ((q & 1) ? fx : 1 - fx) * ((q >> 1) ? fy : 1 - fy);
+        const s = 3 * (r * N + c);
+        if (w === 0 || Number.isNaN(data[s]) || Number.isNaN(data[s + 1])) continue;
+        su += w * data[s];
+        sv += w * data[s + 1];
+        sw += w;
+      }
+      const ax = Math.min(alpha.width - 1, Math.floor(((i + 0.5) / W) * alpha.width));
+      if (sw > 0) {
+        u[k] = su / sw;
+        v[k] = sv / sw;
+        gain[k] = alpha.data[ay * alpha.width + ax];
+      }
     }
   }
   return finishMap(u, v, gain, size, o, W, H);
