@@ -18,6 +18,7 @@ interface PlanCliOptions {
   objective: PlanObjective;
   seed: number;
   evaluations: number;
+  rays: number;
   output?: string;
   json?: boolean;
 }
@@ -77,6 +78,7 @@ export function registerPlan(program: Command): void {
     .addOption(new Option('--objective <name>', 'what to optimize').choices(PLAN_OBJECTIVES as string[]).default(PLAN_DEFAULTS.objective))
     .option('--seed <n>', 'seed of the search; the same seed gives the same answer', (s) => parsePositiveInt(s, 'a positive whole number'), PLAN_DEFAULTS.seed)
     .option('--evaluations <n>', 'candidate placements to try (more is slower and surer)', (s) => parsePositiveInt(s), PLAN_DEFAULTS.evaluations)
+    .option('--rays <n>', 'about how many projector-frame points to trace when the table\'s rigs are measured, as `report --rays` does', (s) => parsePositiveInt(s), PLAN_DEFAULTS.reportVertices)
     .option('-o, --output <file>', 'where to write the best rig (default: RIG.planned.yaml beside the rig)')
     .option('--json', 'machine-readable output')
     .addHelpText(
@@ -86,9 +88,10 @@ export function registerPlan(program: Command): void {
     .action((rigPath: string, opts: PlanCliOptions) => {
       const rig = readRig(rigPath);
       if (opts.evaluations < 20) throw new UserError(`--evaluations: expected at least 20, got ${opts.evaluations}`);
+      if (opts.rays < 1000 || opts.rays > 2_000_000) throw new UserError(`--rays: expected a number from 1000 to 2000000, got ${opts.rays}`);
       let result: PlanResult;
       try {
-        result = planRig(rig, { vary: opts.vary ?? [...PLAN_DEFAULTS.vary], objective: opts.objective, seed: opts.seed, evaluations: opts.evaluations });
+        result = planRig(rig, { vary: opts.vary ?? [...PLAN_DEFAULTS.vary], objective: opts.objective, seed: opts.seed, evaluations: opts.evaluations, reportVertices: opts.rays });
       } catch (e) {
         if (e instanceof RigError) throw new UserError(wordRigError(e));
         throw e;

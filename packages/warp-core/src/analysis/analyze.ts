@@ -5,7 +5,7 @@
 import type { Rig } from '../rig/model.js';
 import { Tracer } from '../trace.js';
 import { brightnessFigures, type BrightnessFigures } from './brightness.js';
-import { contentSolidAngle, coverageFromDirections, type AzimuthCoverage, type DirectionCoverageOptions } from './coverage.js';
+import { contentSolidAngle, coverageFromDirections, coverageShare, type AzimuthCoverage, type DirectionCoverageOptions } from './coverage.js';
 import { focusFigures, type FocusFigures } from './focus.js';
 import { facetFigures, type FacetFigures } from './facets.js';
 import { cellArcmin, resolutionFigures, type ResolutionFigures } from './resolution.js';
@@ -82,8 +82,25 @@ export function vertexFromCells(s: FrameSample, cellValues: Float64Array): Float
   return out;
 }
 
-export function analyzeRig(rig: Rig, options: Partial<ReportOptions> = {}): RigAnalysis {
-  const o = { ...REPORT_DEFAULTS, ...options };
+/** The figures of a placement the planner ranks by: the same numbers `analyzeRig` reports. */
+export interface PlacementFigures {
+  coverage: { fraction: number | null; litSolidAngle: number | null; contentSolidAngle: number | null; bodyShadow: number | null };
+  pixels: PixelFigures;
+  resolution: ResolutionFigures;
+  brightness: BrightnessFigures;
+  focus: FocusFigures;
+}
+
+interface PlacementMeasure {
+  tracer: Tracer;
+  sample: FrameSample;
+  cells: CellFields;
+  arcmin: Float64Array;
+  figures: PlacementFigures;
+}
+
+/** The projector-side part of the report: one coarse trace of the frame and its cells. */
+function measurePlacement(rig: Rig, o: Pick<ReportOptions, 'vertices' | 'depth'>): PlacementMeasure {
   const tracer = new Tracer(rig);
   const sample = sampleFrame(tracer, { vertices: o.vertices });
   const cells = cellFields(sample, o.depth);
@@ -93,24 +110,42 @@ export function analyzeRig(rig: Rig, options: Partial<ReportOptions> = {}): RigA
     const withShadow = cellFields(sample, o.depth, (f) => f === Fate.Lit || f === Fate.Shadow);
     bodyShadow = r((withShadow.total - cells.total) / omegaC);
   }
-  const dirs = coverageFromDirections(tracer, o.directions);
   const arcmin = cellArcmin(cells);
+  const figures: PlacementFigures = {
+    coverage: { fraction: r(coverageShare(cells.total, omegaC)), litSolidAngle: r(cells.total), contentSolidAngle: r(omegaC), bodyShadow },
+    pixels: pixelFigures(sample),
+    resolution: resolutionFigures(sample, cells, arcmin, omegaC),
+    brightness: brightnessFigures(cells),
+    focus: focusFigures(sample, vertexFromCells(sample, arcmin)),
+  };
+  return { tracer, sample, cells, arcmin, figures };
+}
+
+/** The figures `analyzeRig` gives of coverage, pixels, resolution, brightness and focus, without the rest. */
+export function placementFigures(rig: Rig, options: Partial<Pick<ReportOptions, 'vertices' | 'depth'>> = {}): PlacementFigures {
+  return measurePlacement(rig, { ...REPORT_DEFAULTS, ...options }).figures;
+}
+
+export function analyzeRig(rig: Rig, options: Partial<ReportOptions> = {}): RigAnalysis {
+  const o = { ...REPORT_DEFAULTS, ...options };
+  const { tracer, sample, cells, arcmin, figures: placed } = measurePlacement(rig, o);
+  const dirs = coverageFromDirections(tracer, o.directions);
   const safety = safetyFigures(sample);
   const figures: ReportFigures = {
     rig: { name: rig.name ?? null, units: rig.units },
     coverage: {
-      fraction: r(cells.total / omegaC),
+      fraction: placed.coverage.fraction,
       fractionByInverse: r(dirs.fraction),
-      litSolidAngle: r(cells.total),
-      contentSolidAngle: r(omegaC),
-      bodyShadow,
+      litSolidAngle: placed.coverage.litSolidAngle,
+      contentSolidAngle: placed.coverage.contentSolidAngle,
+      bodyShadow: placed.coverage.bodyShadow,
       byAzimuth: dirs.byAzimuth,
     },
-    pixels: pixelFigures(sample),
-    resolution: resolutionFigures(sample, cells, arcmin, omegaC),
-    brightness: brightnessFigures(cells),
+    pixels: placed.pixels,
+    resolution: placed.resolution,
+    brightness: placed.brightness,
     spill: spillFigures(sample),
-    focus: focusFigures(sample, vertexFromCells(sample, arcmin)),
+    focus: placed.focus,
     safety: safety.figures,
     facets: facetFigures(rig),
   };

@@ -41,6 +41,19 @@ export function contentSolidAngle(tracer: Tracer): number {
   return (sum * dT * 2 * Math.PI) / nAz;
 }
 
+/**
+ * Coverage as a share of the content's dome: the lit solid angle over the content's. The lit solid
+ * angle from the projector side is an estimate (spherical triangles over the cells, the edge cells'
+ * last split estimated from a corner's density), the content's is exact; when the whole content is
+ * lit, the estimate's error — a few tenths of a percent where few frame vertices land on the content,
+ * as in a far projector that lights a sliver of its frame — put the ratio above 1, and a search that
+ * maximises coverage seeks out those errors. A share of the content is at most all of it.
+ */
+export function coverageShare(litSolidAngle: number, contentAngle: number): number {
+  if (!(contentAngle > 0) || !(litSolidAngle > 0)) return 0;
+  return Math.min(1, litSolidAngle / contentAngle);
+}
+
 export interface AzimuthCoverage {
   /** Degrees. */
   azimuth: number;

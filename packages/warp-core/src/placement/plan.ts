@@ -10,8 +10,9 @@ import { cloneRig } from '../rig/clone.js';
 import { OptionError, type Rig } from '../rig/model.js';
 import { notice, type Notice } from '../notice.js';
 import { roundFigure } from '../analysis/stats.js';
+import { placementFigures, REPORT_DEFAULTS } from '../analysis/analyze.js';
 import { differentialEvolution, type ScoredPoint } from './differential-evolution.js';
-import { betterPlacement, DEFAULT_CLEARANCE, evaluatePlacement, NOMINAL_BODY, type Evaluation, type PlanFigures, type PlanObjective, type ScoringSettings } from './scoring.js';
+import { betterPlacement, DEFAULT_CLEARANCE, evaluatePlacement, figuresFromReport, NOMINAL_BODY, type Evaluation, type PlanFigures, type PlanObjective, type ScoringSettings } from './scoring.js';
 
 export { NOMINAL_BODY, PLAN_OBJECTIVES, placementViolations, type PlanFigures, type PlanObjective } from './scoring.js';
 
@@ -30,6 +31,8 @@ export interface PlanOptions {
   vertices: number;
   /** Frame vertices when the best few and the current rig are measured again for the table. */
   refineVertices: number;
+  /** Frame vertices when the table's rigs are measured as `report` measures them (its --rays). */
+  reportVertices: number;
   /** Largest share of the dome the projector's body may hide. */
   maxShadow: number;
   /** Clearance between the projector's lens and the floor, and between parts (metres). */
@@ -49,6 +52,7 @@ export const PLAN_DEFAULTS: Readonly<PlanOptions> = {
   keep: 3,
   vertices: 2000,
   refineVertices: 12_000,
+  reportVertices: REPORT_DEFAULTS.vertices,
   maxShadow: 0.01,
   clearance: DEFAULT_CLEARANCE,
 };
@@ -213,15 +217,21 @@ export function planRig(rig: Rig, options: Partial<PlanOptions> = {}): PlanResul
   });
   // the best few distinct feasible candidates, re-measured more finely
   const values = (point: readonly number[]) => Object.fromEntries(dims.map((d, index) => [d.name, roundFigure(point[index], 4)!]));
+  // the table's figures are report's own (the same trace at the same density), the bounds checked finely
+  const reported = (candidate: Rig, check: Evaluation) =>
+    figuresFromReport(placementFigures(candidate, { vertices: settings.reportVertices }), settings.objective, check.figures.bodyShadow);
   const best = distinctBest(search.archive, dims, settings.keep)
     .map((entry) => {
       const candidate = rigWith(rig, dims, entry.point);
-      const figures = evaluatePlacement(candidate, { ...fine, minCoverage }).figures;
+      const check = evaluatePlacement(candidate, { ...fine, minCoverage });
       step();
-      return { rig: candidate, figures, values: values(entry.point) };
+      return { rig: candidate, figures: reported(candidate, check), values: values(entry.point), check };
     })
+    .filter((c) => c.check.violation === 0)
+    .map(({ check: _check, ...c }) => c)
     .sort((a, b) => (b.figures.score ?? 0) - (a.figures.score ?? 0));
-  const current = evaluatePlacement(rig, fine);
+  const currentCheck = evaluatePlacement(rig, fine);
+  const current = { ...currentCheck, figures: reported(rig, currentCheck) };
   settings.onProgress?.(total, total);
   if (best.length === 0) notes.push(notice('plan.nothing-lit', 'no placement within the bounds lights the content; widen the search ({option:vary}) or check the rig'));
   const bounds = Object.fromEntries(dims.map((d) => [d.name, [roundFigure(d.lo, 4)!, roundFigure(d.hi, 4)!] as [number, number]]));

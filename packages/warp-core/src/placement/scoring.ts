@@ -8,7 +8,8 @@ import { RigError, validateRigGeometry, type Rig } from '../rig/model.js';
 import { projectorFrame } from '../optics/projector.js';
 import { Tracer } from '../trace.js';
 import { bodyCorners } from '../analysis/body.js';
-import { contentSolidAngle } from '../analysis/coverage.js';
+import { contentSolidAngle, coverageShare } from '../analysis/coverage.js';
+import type { PlacementFigures } from '../analysis/analyze.js';
 import { ARCMIN_PER_RADIAN, cellArcmin } from '../analysis/resolution.js';
 import { cellFields, Fate, sampleFrame, type FrameSample } from '../analysis/sample.js';
 import { roundFigure, Sorted } from '../analysis/stats.js';
@@ -136,7 +137,7 @@ export function evaluatePlacement(given: Rig, settings: ScoringSettings): Evalua
   const samples = sampleFrame(tracer, { vertices: settings.vertices });
   const cells = cellFields(samples, depth);
   const contentAngle = contentSolidAngle(tracer);
-  const coverage = cells.total / contentAngle;
+  const coverage = coverageShare(cells.total, contentAngle);
   let shadow = 0;
   if (rig.projector.body) shadow = (cellFields(samples, depth, (fate) => fate === Fate.Lit || fate === Fate.Shadow).total - cells.total) / contentAngle;
   const arcmin = new Sorted(cellArcmin(cells));
@@ -176,6 +177,27 @@ export function evaluatePlacement(given: Rig, settings: ScoringSettings): Evalua
     },
     violation,
     reasons,
+  };
+}
+
+/**
+ * The plan's figures of a rig from `report`'s own figures of it (`analyzeRig`), so that the table the
+ * planner prints is what `skyfold report` says of the rig it writes. `bodyShadow` is the planner's own
+ * check (with the body it assumed when the rig gives none), since report counts a shadow only for a
+ * body the rig names.
+ */
+export function figuresFromReport(f: PlacementFigures, objective: PlanObjective, bodyShadow: number | null): PlanFigures {
+  const coverage = f.coverage.fraction;
+  const { median, p95, ideal } = f.resolution;
+  return {
+    coverage,
+    median,
+    p95,
+    pixelsLit: f.pixels.lit,
+    focusNear: f.focus.depth.near,
+    focusFar: f.focus.depth.far,
+    bodyShadow: f.coverage.bodyShadow ?? bodyShadow,
+    score: roundFigure(objectiveScore(objective, coverage ?? 0, ideal, p95 ?? Number.NaN), 5),
   };
 }
 
