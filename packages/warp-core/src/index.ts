@@ -8,7 +8,7 @@ export { LENGTH_UNITS, LengthSyntaxError, METRES_PER_UNIT, formatLength, fromMet
 export { linearToSrgb, srgbToLinear } from './srgb.js';
 export { wordNotice, type Notice } from './notice.js';
 
-export { MAX_PROJECTOR_SIDE, OptionError, RigError, validateRigGeometry, type ContentModel, type DomeModel, type MirrorModel, type ProjectorBody, type ProjectorModel, type Rig } from './rig/model.js';
+export { MAX_PROJECTOR_SIDE, mirrorPole, OptionError, RigError, validateRigGeometry, type ContentModel, type DomeModel, type MirrorModel, type ProjectorBody, type ProjectorModel, type Rig } from './rig/model.js';
 export { rigFromDocument, rigToDocument, shortQuote, type RigDocumentOptions } from './rig/document.js';
 export { cloneRig } from './rig/clone.js';
 export { rigWarnings } from './rig/warnings.js';

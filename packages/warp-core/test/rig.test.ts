@@ -78,10 +78,11 @@ describe('the sagitta relation r = (s² + (w/2)²) / (2s)', () => {
     expect(hemi.mirror.capAngle).toBeCloseTo(Math.PI / 2, 14);
   });
 
-  it('refuses a cap deeper than a hemisphere, and radius with cap', () => {
-    expect(rigError(edited((d) => (d.mirror = { cap: { width: 0.6, depth: 0.4 }, center: [0, -1.6, 0.25] }))).message).toBe(
-      'mirror.cap.depth: a cap deeper than half its width is more than a hemisphere; give mirror.radius and mirror.capAngle instead (got depth 0.4, width 0.6)',
-    );
+  it('takes a cap deeper than a hemisphere (issue 12: the radius and cap angle it implies), refuses radius with cap', () => {
+    // w = 0.6, s = 0.4: r = (0.16 + 0.09) / 0.8 = 0.3125, the rim 0.0875 past the centre (more fully in rig-pole-cap.test.ts)
+    const deep = rigFromDocument(edited((d) => (d.mirror = { cap: { width: 0.6, depth: 0.4 }, center: [0, -1.6, 0.25], axis: [0, 1, 0] })));
+    expect(deep.mirror.radius).toBeCloseTo(0.3125, 15);
+    expect(Math.cos(deep.mirror.capAngle)).toBeCloseTo(-0.0875 / 0.3125, 14);
     expect(rigError(edited((d) => (d.mirror.cap = { width: 0.4, depth: 0.2 }))).message).toBe('mirror: give mirror.radius or mirror.cap, not both');
   });
 });

@@ -7,7 +7,7 @@
  */
 import { isScalar, isSeq, stringify, type Document, type Scalar } from 'yaml';
 import { readTextFile } from './document-file.js';
-import { formatLength, fromMetres, parseLengthString, RAD, rigToDocument, toMetres, type LengthUnit, type Rig } from '@skyfold/warp-core';
+import { formatLength, fromMetres, mirrorPole, parseLengthString, RAD, rigToDocument, toMetres, type LengthUnit, type Rig } from '@skyfold/warp-core';
 
 type Path = readonly (string | number)[];
 
@@ -147,11 +147,18 @@ function editMirror(e: RigDocumentEditor, before: Rig, after: Rig): void {
     if (e.has(['mirror', 'cap']) && width !== undefined) {
       // keep the rim the user measured; the depth follows from the sagitta relation r = (s² + (w/2)²) / (2s)
       const half = fromLengthNode(e, ['mirror', 'cap', 'width']) / 2;
-      const depth = m.radius - Math.sqrt(Math.max(0, m.radius * m.radius - half * half));
+      // a cap deeper than a hemisphere (its half-angle past 90°) keeps the deep root of the relation
+      const rest = Math.sqrt(Math.max(0, m.radius * m.radius - half * half));
+      const depth = m0.capAngle > Math.PI / 2 ? m.radius + rest : m.radius - rest;
       e.length('mirror.radius', ['mirror', 'cap', 'depth'], depth);
     } else e.length('mirror.radius', ['mirror', 'radius'], m.radius);
   }
-  if (!samePoint(m0.center, m.center)) e.point('mirror.center', ['mirror', 'center'], m0.center, m.center);
+  if (e.has(['mirror', 'pole'])) {
+    // the user placed the mirror by its apex: write the apex back, which moves with the radius and the axis too
+    const p0 = mirrorPole(m0);
+    const p = mirrorPole(m);
+    if (!samePoint(p0, p)) e.point('mirror.center', ['mirror', 'pole'], p0, p);
+  } else if (!samePoint(m0.center, m.center)) e.point('mirror.center', ['mirror', 'center'], m0.center, m.center);
   if (!sameNumbers(m0.axis, m.axis)) e.direction('mirror.axis', ['mirror', 'axis'], m.axis);
   if (!sameAngle(m0.capAngle, m.capAngle)) e.number('mirror.capAngle', ['mirror', 'capAngle'], m.capAngle * RAD, ANGLE_DECIMALS);
 }

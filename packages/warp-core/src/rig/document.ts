@@ -20,7 +20,7 @@ const MIN_FOV = 0.01;
 export const RIG_FIELDS: Readonly<Record<string, readonly string[]>> = {
   '': ['units', 'name', 'notes', 'dome', 'projector', 'mirror', 'content'],
   dome: ['radius', 'diameter', 'floor', 'mesh', 'meshUnits'],
-  mirror: ['radius', 'cap', 'center', 'axis', 'capAngle'],
+  mirror: ['radius', 'cap', 'center', 'pole', 'axis', 'capAngle'],
   'mirror.cap': ['width', 'depth'],
   projector: ['position', 'lookAt', 'roll', 'up', 'resolution', 'throwRatio', 'lensShift', 'body', 'aperture', 'minFocus'],
   'projector.body': ['width', 'length', 'height'],
@@ -232,17 +232,22 @@ export function rigFromDocument(input: unknown, options: RigDocumentOptions = {}
     checkKnownFields(cap, 'mirror.cap', RIG_FIELDS['mirror.cap']);
     const width = r.length(need(cap, 'width', 'mirror.cap'), 'mirror.cap.width', 'positive');
     const depth = r.length(need(cap, 'depth', 'mirror.cap'), 'mirror.cap.depth', 'positive');
-    if (depth > width / 2 + 1e-12) {
-      // Deeper than a hemisphere: the rim is narrower than the sphere, so width and depth no longer say which.
-      throw new RigError('mirror.cap.depth', `a cap deeper than half its width is more than a hemisphere; give mirror.radius and mirror.capAngle instead (got depth ${showValue(cap.depth)}, width ${showValue(cap.width)})`);
-    }
     mirrorRadius = sagittaRadius(width, depth);
+    // the cap's half-angle from its rim: r − depth is negative for a cap deeper than a hemisphere (more than 90°)
     capAngleFromCap = Math.atan2(width / 2, mirrorRadius - depth);
   } else {
     throw new RigError('mirror.radius', 'is missing (give mirror.radius, or mirror.cap with width and depth)');
   }
-  const center = r.point(need(mirror, 'center', 'mirror'), 'mirror.center');
   const axis = mirror.axis === undefined ? ([0, 0, 1] as Vec3) : r.direction(mirror.axis, 'mirror.axis');
+  if (mirror.center !== undefined && mirror.pole !== undefined) throw new RigError('mirror', 'give mirror.center or mirror.pole, not both');
+  let center: Vec3;
+  if (mirror.pole !== undefined) {
+    // the apex a tape reaches: the sphere's centre lies one radius behind it, along the axis (DESIGN.md "As-built domes")
+    const pole = r.point(mirror.pole, 'mirror.pole');
+    center = [pole[0] - mirrorRadius * axis[0], pole[1] - mirrorRadius * axis[1], pole[2] - mirrorRadius * axis[2]];
+  } else if (mirror.center !== undefined) {
+    center = r.point(mirror.center, 'mirror.center');
+  } else throw new RigError('mirror.center', 'is missing (give mirror.center, or mirror.pole: the apex of the cap)');
   const capAngle =
     mirror.capAngle !== undefined
       ? r.number(mirror.capAngle, 'mirror.capAngle', (x) => x > 0 && x <= 180, 'an angle in (0, 180] degrees') * DEG
