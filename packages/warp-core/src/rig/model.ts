@@ -171,6 +171,40 @@ export function validateRigGeometry(rig: Rig): void {
   if (!(content.fov > 0 && content.fov <= 2 * Math.PI)) throw new RigError('content.fov', 'expected an angle in (0, 360] degrees');
   if (!(length(content.eye) < R)) throw new RigError('content.eye', 'the eye point must be inside the dome');
   if (rig.dome.floor !== undefined && !(rig.dome.floor > 0)) throw new RigError('dome.floor', 'expected a positive length');
+  if (rig.dome.floor !== undefined) validateAboveFloor(rig, rig.dome.floor);
+}
+
+/** Parts may rest on the floor; rounding a hair below it (a nanometre) is not a rig mistake. */
+const FLOOR_TOLERANCE = 1e-9;
+
+/** Lowest height (z) of any point of the mirror's reflective cap. */
+export function capLowestZ(m: MirrorModel): number {
+  // the cap's point nearest straight down: the nadir itself when the cap holds it, else the rim toward it
+  const fromNadir = safeAcos(-m.axis[2]);
+  const lowest = fromNadir <= m.capAngle ? -1 : -Math.cos(fromNadir - m.capAngle);
+  return m.center[2] + m.radius * lowest;
+}
+
+/** Lowest height (z) of the projector's body box (lens at the front face's centre, DESIGN.md rig `projector.body`). */
+export function bodyLowestZ(p: ProjectorModel, body: ProjectorBody): number {
+  const { forward, right, up } = projectorBasis(p);
+  return p.position[2] - (Math.abs(right[2]) * body.width) / 2 - (Math.abs(up[2]) * body.height) / 2 + Math.min(0, -body.length * forward[2]);
+}
+
+/** The floor is real: nothing of the rig may stand below it (`floor` metres under the springline). */
+function validateAboveFloor(rig: Rig, floor: number): void {
+  const L = (m: number) => formatLength(m, rig.units);
+  const under = (z: number) => -floor - z;
+  const where = `dome.floor puts the floor ${L(floor)} below the springline`;
+  const mirrorUnder = under(capLowestZ(rig.mirror));
+  if (mirrorUnder > FLOOR_TOLERANCE) throw new RigError('mirror', `the mirror reaches ${L(mirrorUnder)} below the floor (${where}): raise the mirror or check dome.floor`);
+  const p = rig.projector;
+  const lensUnder = under(p.position[2]);
+  if (lensUnder > FLOOR_TOLERANCE) throw new RigError('projector.position', `the projector's lens is ${L(lensUnder)} below the floor (${where}): raise the projector or check dome.floor`);
+  if (p.body) {
+    const bodyUnder = under(bodyLowestZ(p, p.body));
+    if (bodyUnder > FLOOR_TOLERANCE) throw new RigError('projector.body', `the projector's body reaches ${L(bodyUnder)} below the floor (${where}): raise the projector, tilt it less, or check dome.floor`);
+  }
 }
 
 /** Degrees helper for building rigs in code. */
