@@ -38,9 +38,9 @@ const idx = (c: number, r: number): number => r * COLS + c;
 /** The test mesh's (u, v) at a continuous grid position (c, r): it is linear in both. */
 const linearUv = (c: number, r: number): [number, number] => [(c / (COLS - 1)) * 0.9 + 0.03 + 0.01 * r, 0.05 + 0.4 * r + 0.005 * c];
 
-function expectSameGrid(got: WarpMesh, want: WarpMesh, tol: number, fields: Array<'u' | 'v' | 'brightness' | 'mask'> = ['u', 'v', 'brightness', 'mask']): void {
+function expectSameGrid(got: WarpMesh, want: WarpMesh, tol: number, arrays: Array<'u' | 'v' | 'brightness' | 'mask'> = ['u', 'v', 'brightness', 'mask']): void {
   expect([got.cols, got.rows]).toEqual([want.cols, want.rows]);
-  for (const f of fields) {
+  for (const f of arrays) {
     for (let i = 0; i < want.u.length; i++) {
       if (tol === 0) expect(got[f][i], `${f}[${i}]`).toBe(want[f][i]);
       else expect(Math.abs(got[f][i] - want[f][i]), `${f}[${i}]`).toBeLessThanOrEqual(tol);

@@ -26,7 +26,7 @@ export { domePointFromEye, domePointSeen, locateDirection, type LocateFailure, t
 export { createMesh, meshVertexPosition, type WarpMesh } from './mesh/mesh.js';
 export { BAKE_DEFAULTS, bakeMesh, type BakeOptions, type BakeResult, type MeshAccuracy } from './mesh/bake.js';
 export { pixelMapFromFillLayout, pixelMapFromMesh, pixelMapFromRig, type AlphaMap, type SourceOrientation } from './mesh/pixel-map.js';
-export { pixelFields, type PixelFieldOptions, type PixelFields } from './mesh/pixel-fields.js';
+export { pixelSamples, type PixelSampleOptions, type PixelSamples } from './mesh/pixel-samples.js';
 export { fillLayoutFromMesh, fillLayoutFromRig, fillSamplePosition, type FillLayoutGrid } from './mesh/fill-layout.js';
 export { REMAP_DEFAULTS, createImageLike, remap } from './remap/remap.js';
 export { FIXED_FRACTION_BITS, fixedBilinearApplies, prepareBilinear, type PreparedBilinear } from './remap/bilinear-fixed.js';
@@ -40,7 +40,7 @@ export { REPORT_DEFAULTS, analyzeRig, type ReportFigures, type RigAnalysis } fro
 export { bodyCorners, segmentHitsBody } from './analysis/body.js';
 export { landing } from './analysis/light.js';
 export { EYE_BANDS, describeArc } from './analysis/safety.js';
-export { Fate, fateOf } from './analysis/sample.js';
+export { classifyHit } from './analysis/sample.js';
 export { Sorted } from './analysis/stats.js';
 export { PLAN_DEFAULTS, PLAN_OBJECTIVES, planRig, type PlanCandidate, type PlanObjective, type PlanResult } from './placement/plan.js';
 

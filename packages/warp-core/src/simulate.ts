@@ -5,7 +5,7 @@
  */
 import { fisheyeToDirection } from './optics/fisheye.js';
 import { azAltFromDirection } from './math.js';
-import { domeAreaOnGrid, referenceArea } from './mesh/field.js';
+import { domeAreaOnGrid, referenceArea } from './mesh/grid-samples.js';
 import type { RemapMap } from './remap/types.js';
 import type { Rig } from './rig/model.js';
 import { locateDirection } from './locate.js';

@@ -10,11 +10,14 @@ import { pixelToRay, projectorFrame, type ProjectorFrame } from './optics/projec
 import type { Rig } from './rig/model.js';
 import type { TriangleBvh } from './optics/triangle-bvh.js';
 
-/** What a projector pixel's light does. Numeric codes are used in typed arrays. */
-export const HitKind = { MirrorMiss: 0, Dome: 1, BelowHorizon: 2, Open: 3 } as const;
+/**
+ * What a projector pixel's light does. Numeric codes are used in typed arrays. The trace gives the first
+ * four; the report's analysis (`classifyHit`, analysis/sample.ts) splits Dome into Lit, Shadow and
+ * OutsideContent and counts Open as BelowHorizon, so its grids hold neither Dome nor Open.
+ */
+export const HitKind = { MirrorMiss: 0, Dome: 1, BelowHorizon: 2, Open: 3, Lit: 4, Shadow: 5, OutsideContent: 6 } as const;
 export type HitKindCode = (typeof HitKind)[keyof typeof HitKind];
 export type HitName = 'mirror-miss' | 'dome' | 'below-horizon' | 'open';
-export const HIT_NAMES: readonly HitName[] = ['mirror-miss', 'dome', 'below-horizon', 'open'];
 
 /** True for the kinds whose light lands on a surface (dome or below the horizon) and so has a fisheye (u, v). */
 export function landsOnDome(kind: number): boolean {

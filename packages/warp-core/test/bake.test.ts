@@ -8,7 +8,7 @@ import { fileURLToPath } from 'node:url';
 import { describe, expect, it } from 'vitest';
 import { parse } from 'yaml';
 import { bakeMesh, BAKE_DEFAULTS } from '../src/mesh/bake.js';
-import { brightnessFactor, domeAreaOnGrid, quantile, referenceArea } from '../src/mesh/field.js';
+import { brightnessFactor, domeAreaOnGrid, quantile, referenceArea } from '../src/mesh/grid-samples.js';
 import { rigFromDocument } from '../src/rig/document.js';
 import { Tracer, allocGridOutput } from '../src/trace.js';
 import { type Rig } from '../src/rig/model.js';

@@ -6,7 +6,7 @@
 import { readFileSync } from 'node:fs';
 import { describe, expect, it } from 'vitest';
 import { parse } from 'yaml';
-import { domeAreaOnGrid } from '../src/mesh/field.js';
+import { domeAreaOnGrid } from '../src/mesh/grid-samples.js';
 import { rigFromDocument } from '../src/rig/document.js';
 import { Tracer } from '../src/trace.js';
 

@@ -6,7 +6,7 @@ import { describe, expect, it } from 'vitest';
 import fc from 'fast-check';
 import { deg, validateRigGeometry, type Rig } from '../src/rig/model.js';
 import { Tracer } from '../src/trace.js';
-import { cellFields, sampleFrame } from '../src/analysis/sample.js';
+import { cellMeasures, sampleFrame } from '../src/analysis/sample.js';
 import { contentSolidAngle, coverageShare } from '../src/analysis/coverage.js';
 import { analyzeRig } from '../src/analysis/analyze.js';
 import { evaluatePlacement } from '../src/placement/scoring.js';
@@ -34,7 +34,7 @@ describe('coverage is a share of the content', () => {
   it('stays at most 1 where the lit solid angle estimate exceeds the content (the placement that gave 100.3%)', () => {
     const rig = farProjector();
     const tracer = new Tracer(rig);
-    const cells = cellFields(sampleFrame(tracer, { vertices: 2000 }), 2);
+    const cells = cellMeasures(sampleFrame(tracer, { vertices: 2000 }), 2);
     // the cause: at the planner's coarse grid the lit-solid-angle estimate is above the content's exact one
     expect(cells.total / contentSolidAngle(tracer)).toBeGreaterThan(1.001);
     const coverage = evaluatePlacement(rig, SETTINGS).figures.coverage!;

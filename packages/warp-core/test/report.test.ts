@@ -5,7 +5,7 @@
 import { describe, expect, it } from 'vitest';
 import { analyzeRig } from '../src/analysis/analyze.js';
 import { ARCMIN_PER_RADIAN, pixelResolution } from '../src/analysis/resolution.js';
-import { cellFields, sampleFrame } from '../src/analysis/sample.js';
+import { cellMeasures, sampleFrame } from '../src/analysis/sample.js';
 import { contentSolidAngle, coverageFromDirections } from '../src/analysis/coverage.js';
 import { deg, validateRigGeometry, type Rig } from '../src/rig/model.js';
 import { reflectedThrough, STANDING_CAUTIONS } from '../src/analysis/safety.js';
@@ -46,7 +46,7 @@ describe('coverage, two independent ways', () => {
   for (const [name, rig] of cases) {
     it(`agrees within half a percent: ${name}`, () => {
       const tracer = new Tracer(rig);
-      const cells = cellFields(sampleFrame(tracer, { vertices: 40_000 }), 3);
+      const cells = cellMeasures(sampleFrame(tracer, { vertices: 40_000 }), 3);
       const byGrid = cells.total / contentSolidAngle(tracer);
       const byInverse = coverageFromDirections(tracer, { azimuths: 240, zenithSteps: 150 }).fraction;
       expect(byGrid).toBeGreaterThan(0.05);

@@ -1,6 +1,6 @@
 /** `skyfold bake`: the warp mesh, with its measured accuracy, in open formats. */
 import { Option, type Command } from 'commander';
-import { BAKE_DEFAULTS, bakeMesh, fillLayoutFromRig, pixelFields, RigError, rigToDocument, type BakeOptions, type BakeResult, type LengthUnit } from '@skyfold/warp-core';
+import { BAKE_DEFAULTS, bakeMesh, fillLayoutFromRig, pixelSamples, RigError, rigToDocument, type BakeOptions, type BakeResult, type LengthUnit } from '@skyfold/warp-core';
 import { readRig } from '../io/document-file.js';
 import { writeOutputFile } from '../io/output-file.js';
 import { UserError } from '../errors.js';
@@ -99,7 +99,7 @@ export function registerBake(program: Command): void {
       }
       meta.bake = { ...settings, grid: [result.mesh.cols, result.mesh.rows], accuracy: result.accuracy, edge: result.edge, areaMax: result.areaMax };
       const perPixel = opts.alphaResolution === 'full' && targets.some((t) => t.format === 'mpcdi' || t.format === 'png');
-      const pixels = perPixel ? pixelFields(rig, settings) : undefined;
+      const pixels = perPixel ? pixelSamples(rig, settings) : undefined;
       // MPCDI's warp grid is in the standard's fill layout, traced at its own sample positions
       const warp = targets.some((t) => t.format === 'mpcdi') ? fillLayoutFromRig(rig, result.mesh.cols, result.mesh.rows) : undefined;
       for (const t of targets) {

@@ -1,5 +1,5 @@
 /** Warp mesh files: one module per format, and a format-by-name front door for the CLI. */
-import type { PixelFields, WarpMesh } from '@skyfold/warp-core';
+import type { PixelSamples, WarpMesh } from '@skyfold/warp-core';
 import { checkMeshValues } from './check.js';
 import { readCsv, writeCsv } from './csv.js';
 import { readGlb, writeGlb, type GlbDome } from './glb.js';
@@ -21,8 +21,8 @@ export function formatFromPath(path: string): MeshFormat | undefined {
 
 export interface EncodeMeshOptions {
   mpcdi?: MpcdiOptions;
-  /** The exact fields at every projector pixel centre: the MPCDI alpha map and the PNG map are then written per pixel. */
-  pixels?: PixelFields;
+  /** The exact values at every projector pixel centre: the MPCDI alpha map and the PNG map are then written per pixel. */
+  pixels?: PixelSamples;
   /** An as-built dome's triangles, for the formats that carry them (.glb). */
   dome?: GlbDome;
 }

@@ -38,7 +38,7 @@
  */
 import { strToU8, strFromU8, unzipSync, zipSync } from 'fflate';
 import sharp from 'sharp';
-import { fillLayoutFromMesh, type FillLayoutGrid, type PixelFields, type WarpMesh } from '@skyfold/warp-core';
+import { fillLayoutFromMesh, type FillLayoutGrid, type PixelSamples, type WarpMesh } from '@skyfold/warp-core';
 import { decodePfm, encodePfm } from './pfm.js';
 import { checkMeshSize, checkMeshValues } from './check.js';
 import { encodePng } from '../io/image-codec.js';
@@ -54,8 +54,8 @@ export interface MpcdiOptions {
   date?: Date;
   /** The warp grid in the fill layout, traced from the rig; resampled from the mesh when absent. */
   warp?: FillLayoutGrid;
-  /** The exact fields at every projector pixel centre: the alpha map is then brightness·mask per pixel, not interpolated from the grid. */
-  pixels?: PixelFields;
+  /** The exact values at every projector pixel centre: the alpha map is then brightness·mask per pixel, not interpolated from the grid. */
+  pixels?: PixelSamples;
 }
 
 export const MPCDI_DEFAULTS: Required<Omit<MpcdiOptions, 'date' | 'pixels' | 'warp'>> = { bufferId: 'skyfold', regionId: 'projector', alphaBitDepth: 8 };
@@ -143,9 +143,9 @@ async function encodeAlphaMap(mesh: WarpMesh, width: number, height: number, bit
   return encodePng({ width, height, channels: 1, data: out }, 9);
 }
 
-/** The alpha map from the exact per-pixel fields: brightness·mask at each pixel centre. */
-async function encodeExactAlphaMap(f: PixelFields, width: number, height: number, bitDepth: 8 | 16): Promise<Uint8Array> {
-  if (f.width !== width || f.height !== height) throw new Error(`Expected per-pixel fields of ${width}×${height} but received ${f.width}×${f.height}`);
+/** The alpha map from the exact per-pixel values: brightness·mask at each pixel centre. */
+async function encodeExactAlphaMap(f: PixelSamples, width: number, height: number, bitDepth: 8 | 16): Promise<Uint8Array> {
+  if (f.width !== width || f.height !== height) throw new Error(`Expected per-pixel values of ${width}×${height} but received ${f.width}×${f.height}`);
   const max = bitDepth === 16 ? 65535 : 255;
   const out = bitDepth === 16 ? new Uint16Array(width * height) : new Uint8Array(width * height);
   for (let k = 0; k < width * height; k++) out[k] = Math.round(Math.min(1, Math.max(0, f.brightness[k] * f.mask[k])) * max);

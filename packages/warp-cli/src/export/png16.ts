@@ -15,7 +15,7 @@
  */
 import { crc32 } from 'node:zlib';
 import sharp from 'sharp';
-import { createMesh, type PixelFields, type WarpMesh } from '@skyfold/warp-core';
+import { createMesh, type PixelSamples, type WarpMesh } from '@skyfold/warp-core';
 import { encodePng } from '../io/image-codec.js';
 
 /** tEXt keyword and text that mark a full-resolution (per pixel centre) map. */
@@ -41,8 +41,8 @@ export async function decodePng16(bytes: Uint8Array): Promise<{ width: number; h
   return { width: info.width, height: info.height, channels: info.channels, data: samples };
 }
 
-/** The full-resolution map: one pixel per projector pixel, the exact fields at its centre, marked by a tEXt chunk. */
-export async function writePixelMapPng(f: PixelFields): Promise<Uint8Array> {
+/** The full-resolution map: one pixel per projector pixel, the exact values at its centre, marked by a tEXt chunk. */
+export async function writePixelMapPng(f: PixelSamples): Promise<Uint8Array> {
   const n = f.width * f.height;
   const data = new Uint16Array(n * 4);
   for (let i = 0; i < n; i++) {

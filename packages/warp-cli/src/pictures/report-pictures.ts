@@ -4,7 +4,7 @@
  * the set-up with the eye-height bands (side-view.ts), and a plan view of where light meets eye height
  * (safety-plan.ts).
  */
-import { allocGridOutput, Fate, fateOf, HitKind, pixelToRay, RAD, type RigAnalysis, Sorted, type Vec3 } from '@skyfold/warp-core';
+import { allocGridOutput, classifyHit, HitKind, pixelToRay, RAD, type RigAnalysis, Sorted, type Vec3 } from '@skyfold/warp-core';
 import { drawFisheyeMap, fisheyeLookup } from './fisheye-map.js';
 import type { Picture } from './svg.js';
 import { oklchToSrgb8, PALETTE, type Rgb8 } from './colormap.js';
@@ -18,18 +18,18 @@ const INK = PALETTE.ink;
 const FAINT = PALETTE.faint;
 const PAPER = PALETTE.paper;
 
-const FATE_COLOURS: Record<number, Rgb8> = {
-  [Fate.MirrorMiss]: PALETTE.mirrorMiss,
-  [Fate.Shadow]: PALETTE.shadow,
-  [Fate.OutsideContent]: PALETTE.outsideContent,
-  [Fate.BelowHorizon]: PALETTE.belowHorizon,
+const KIND_COLOURS: Record<number, Rgb8> = {
+  [HitKind.MirrorMiss]: PALETTE.mirrorMiss,
+  [HitKind.Shadow]: PALETTE.shadow,
+  [HitKind.OutsideContent]: PALETTE.outsideContent,
+  [HitKind.BelowHorizon]: PALETTE.belowHorizon,
 };
-const FATE_LABELS: [number, string][] = [
-  [Fate.Lit, 'lights the content on the dome (shaded by altitude)'],
-  [Fate.OutsideContent, "on the dome, outside the content's field of view"],
-  [Fate.BelowHorizon, 'below the springline: wall, floor, audience'],
-  [Fate.MirrorMiss, 'misses the mirror: straight on to the back of the room'],
-  [Fate.Shadow, "hidden by the projector's own body"],
+const KIND_LABELS: [number, string][] = [
+  [HitKind.Lit, 'lights the content on the dome (shaded by altitude)'],
+  [HitKind.OutsideContent, "on the dome, outside the content's field of view"],
+  [HitKind.BelowHorizon, 'below the springline: wall, floor, audience'],
+  [HitKind.MirrorMiss, 'misses the mirror: straight on to the back of the room'],
+  [HitKind.Shadow, "hidden by the projector's own body"],
 ];
 
 /** The projector frame, coloured by what each pixel's light does, with altitude contours every 15°. */
@@ -41,7 +41,7 @@ export function drawFrameMap(a: RigAnalysis, width = 640): RasterImage {
   const xs = Float64Array.from({ length: w }, (_, i) => ((i + 0.5) * W) / w);
   const ys = Float64Array.from({ length: h }, (_, j) => ((j + 0.5) * H) / h);
   const g = tracer.grid(xs, ys, allocGridOutput(w, h, { points: true, mirrorDistance: true }));
-  const fate = new Uint8Array(w * h);
+  const kinds = new Uint8Array(w * h);
   const alt = new Float64Array(w * h).fill(Number.NaN);
   const P = tracer.frame.origin;
   const e = tracer.rig.content.eye;
@@ -54,24 +54,24 @@ export function drawFrameMap(a: RigAnalysis, width = 640): RasterImage {
       const t = g.mirrorDistance![k];
       const X: Vec3 = [P[0] + t * ray[0], P[1] + t * ray[1], P[2] + t * ray[2]];
       const D: Vec3 = [g.point![3 * k], g.point![3 * k + 1], g.point![3 * k + 2]];
-      fate[k] = fateOf(tracer, g.kind[k], g.u[k], g.v[k], X, D);
+      kinds[k] = classifyHit(tracer, g.kind[k], g.u[k], g.v[k], X, D);
       const dx = D[0] - e[0], dy = D[1] - e[1], dz = D[2] - e[2];
       alt[k] = Math.asin(Math.max(-1, Math.min(1, dz / Math.hypot(dx, dy, dz)))) * RAD;
     }
   const shades: Rgb8[] = Array.from({ length: 19 }, (_, q) => oklchToSrgb8(0.5 + (0.38 * q) / 18, 0.1, 175 - q * 2));
   const left = 40;
   const top = 86;
-  const legendH = 30 + FATE_LABELS.length * 22;
+  const legendH = 30 + KIND_LABELS.length * 22;
   const img = createImage(w + 2 * left, top + h + legendH + 20, PAPER);
   for (let j = 0; j < h; j++)
     for (let i = 0; i < w; i++) {
       const k = j * w + i;
-      const f = fate[k];
-      const col = f === Fate.Lit ? shades[Math.max(0, Math.min(18, Math.round(alt[k] / 5)))] : FATE_COLOURS[f];
+      const f = kinds[k];
+      const col = f === HitKind.Lit ? shades[Math.max(0, Math.min(18, Math.round(alt[k] / 5)))] : KIND_COLOURS[f];
       setPixel(img, left + i, top + j, col);
     }
   // contours where the 15° altitude band changes between neighbours on the dome
-  const band = (k: number) => (fate[k] === Fate.Lit || fate[k] === Fate.OutsideContent || fate[k] === Fate.Shadow ? Math.floor(alt[k] / 15) : -99);
+  const band = (k: number) => (kinds[k] === HitKind.Lit || kinds[k] === HitKind.OutsideContent || kinds[k] === HitKind.Shadow ? Math.floor(alt[k] / 15) : -99);
   for (let j = 0; j < h - 1; j++)
     for (let i = 0; i < w - 1; i++) {
       const k = j * w + i;
@@ -100,16 +100,16 @@ export function drawFrameMap(a: RigAnalysis, width = 640): RasterImage {
   drawLabel(img, `The projector frame (${W} x ${H}) as the projector shows it; lines: altitude on the dome every 15°.`, 24, 52, FAINT);
   const shares = a.figures.pixels;
   const pct: Record<number, number | null> = {
-    [Fate.Lit]: shares.lit,
-    [Fate.OutsideContent]: shares.outsideContent,
-    [Fate.BelowHorizon]: shares.belowHorizon,
-    [Fate.MirrorMiss]: shares.mirrorMiss,
-    [Fate.Shadow]: shares.shadow,
+    [HitKind.Lit]: shares.lit,
+    [HitKind.OutsideContent]: shares.outsideContent,
+    [HitKind.BelowHorizon]: shares.belowHorizon,
+    [HitKind.MirrorMiss]: shares.mirrorMiss,
+    [HitKind.Shadow]: shares.shadow,
   };
   let ly = top + h + 24;
-  for (const [f, label] of FATE_LABELS) {
-    if (f === Fate.Shadow && !tracer.rig.projector.body) continue;
-    fillRect(img, left, ly, 16, 16, f === Fate.Lit ? shades[9] : FATE_COLOURS[f]);
+  for (const [f, label] of KIND_LABELS) {
+    if (f === HitKind.Shadow && !tracer.rig.projector.body) continue;
+    fillRect(img, left, ly, 16, 16, f === HitKind.Lit ? shades[9] : KIND_COLOURS[f]);
     strokeRect(img, left, ly, 16, 16, FAINT);
     const p = pct[f];
     drawLabel(img, `${p === null ? '-' : (p * 100).toFixed(1).padStart(5)}%  ${label}`, left + 26, ly + 4, INK);

@@ -3,14 +3,14 @@
  * rays at most) and one pass of dome directions through the inverse.
  */
 import type { Rig } from '../rig/model.js';
-import { Tracer } from '../trace.js';
+import { HitKind, Tracer } from '../trace.js';
 import { brightnessFigures, type BrightnessFigures } from './brightness.js';
 import { contentSolidAngle, coverageFromDirections, coverageShare, type AzimuthCoverage, type DirectionCoverageOptions } from './coverage.js';
 import { focusFigures, type FocusFigures } from './focus.js';
 import { facetFigures, type FacetFigures } from './facets.js';
 import { cellArcmin, resolutionFigures, type ResolutionFigures } from './resolution.js';
 import { safetyFigures, type SafetyFigures, type SafetyZones } from './safety.js';
-import { cellFields, Fate, sampleFrame, type CellFields, type FrameSample } from './sample.js';
+import { cellMeasures, sampleFrame, type CellMeasures, type FrameSample } from './sample.js';
 import { pixelFigures, spillFigures, type PixelFigures, type SpillFigures } from './spill.js';
 import { roundFigure as r } from './stats.js';
 
@@ -55,7 +55,7 @@ export interface ReportFigures {
 export interface RigAnalysis {
   figures: ReportFigures;
   sample: FrameSample;
-  cells: CellFields;
+  cells: CellMeasures;
   /** Arcminutes per pixel per full lit cell (NaN elsewhere). */
   arcmin: Float64Array;
   safetyZones: SafetyZones | null;
@@ -94,7 +94,7 @@ export interface PlacementFigures {
 interface PlacementMeasure {
   tracer: Tracer;
   sample: FrameSample;
-  cells: CellFields;
+  cells: CellMeasures;
   arcmin: Float64Array;
   figures: PlacementFigures;
 }
@@ -103,11 +103,11 @@ interface PlacementMeasure {
 function measurePlacement(rig: Rig, o: Pick<ReportOptions, 'vertices' | 'depth'>): PlacementMeasure {
   const tracer = new Tracer(rig);
   const sample = sampleFrame(tracer, { vertices: o.vertices });
-  const cells = cellFields(sample, o.depth);
+  const cells = cellMeasures(sample, o.depth);
   const omegaC = contentSolidAngle(tracer);
   let bodyShadow: number | null = null;
   if (rig.projector.body) {
-    const withShadow = cellFields(sample, o.depth, (f) => f === Fate.Lit || f === Fate.Shadow);
+    const withShadow = cellMeasures(sample, o.depth, (f) => f === HitKind.Lit || f === HitKind.Shadow);
     bodyShadow = r((withShadow.total - cells.total) / omegaC);
   }
   const arcmin = cellArcmin(cells);

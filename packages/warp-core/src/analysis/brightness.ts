@@ -4,7 +4,7 @@
  * to [floor, 1], with robust ends (1st and 99th percentiles of the lit pixels).
  */
 import { BAKE_DEFAULTS } from '../mesh/bake.js';
-import type { CellFields } from './sample.js';
+import type { CellMeasures } from './sample.js';
 import { roundFigure as r, Sorted } from './stats.js';
 
 export interface BrightnessFigures {
@@ -26,7 +26,7 @@ export interface BrightnessFigures {
   areaMin: number | null;
 }
 
-export function brightnessFigures(cells: CellFields, strength = BAKE_DEFAULTS.brightness, floor = BAKE_DEFAULTS.brightnessFloor): BrightnessFigures {
+export function brightnessFigures(cells: CellMeasures, strength = BAKE_DEFAULTS.brightness, floor = BAKE_DEFAULTS.brightnessFloor): BrightnessFigures {
   const A = new Sorted(cells.areaPerPixel);
   const aMax = A.q(0.99);
   const aMin = A.q(0.01);

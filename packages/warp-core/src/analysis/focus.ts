@@ -8,7 +8,7 @@
  */
 import { formatLength } from '../units.js';
 import type { FrameSample } from './sample.js';
-import { Fate } from './sample.js';
+import { HitKind } from '../trace.js';
 import { roundFigure as r, Sorted } from './stats.js';
 
 export interface FocusFigures {
@@ -30,7 +30,7 @@ export function focusFigures(s: FrameSample, vertexArcmin: Float64Array): FocusF
   const rig = s.tracer.rig;
   const f = s.tracer.frame;
   const n = s.cols * s.rows;
-  const lit = (k: number) => s.fate[k] === Fate.Lit;
+  const lit = (k: number) => s.kind[k] === HitKind.Lit;
   const axial = new Float64Array(n).fill(Number.NaN);
   for (let k = 0; k < n; k++) {
     if (!lit(k)) continue;

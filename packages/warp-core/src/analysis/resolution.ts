@@ -5,7 +5,7 @@
  */
 import { azAltFromDirection, RAD, type Vec3 } from '../math.js';
 import type { Tracer } from '../trace.js';
-import type { CellFields, FrameSample } from './sample.js';
+import type { CellMeasures, FrameSample } from './sample.js';
 import { roundFigure as r, Sorted } from './stats.js';
 
 export const ARCMIN_PER_RADIAN = RAD * 60;
@@ -63,7 +63,7 @@ export interface ResolutionFigures {
 }
 
 /** Per full lit cell: arcminutes per pixel (NaN elsewhere). */
-export function cellArcmin(cells: CellFields): Float64Array {
+export function cellArcmin(cells: CellMeasures): Float64Array {
   return Float64Array.from(cells.omegaPerPixel, (w) => (Number.isFinite(w) ? Math.sqrt(w) * ARCMIN_PER_RADIAN : Number.NaN));
 }
 
@@ -77,7 +77,7 @@ export function cellDirection(s: FrameSample, i: number, j: number): Vec3 {
   return [v[0] / l, v[1] / l, v[2] / l];
 }
 
-export function resolutionFigures(s: FrameSample, cells: CellFields, arcmin: Float64Array, contentOmega: number): ResolutionFigures {
+export function resolutionFigures(s: FrameSample, cells: CellMeasures, arcmin: Float64Array, contentOmega: number): ResolutionFigures {
   const sorted = new Sorted(arcmin);
   const nc = s.cols - 1;
   let worstC = -1;

@@ -11,7 +11,8 @@ import { insideFrame, rayToPixel } from '../optics/projector.js';
 import { segmentHitsBody } from './body.js';
 import { landing } from './light.js';
 import { formatLength } from '../units.js';
-import { Fate, type FrameSample } from './sample.js';
+import type { FrameSample } from './sample.js';
+import { HitKind } from '../trace.js';
 import { strayLandings } from './spill.js';
 import { azimuthArc, roundFigure as r } from './stats.js';
 
@@ -223,11 +224,11 @@ function beamCrossings(s: FrameSample, landings: ReturnType<typeof strayLandings
   };
   // every other vertex each way is plenty for a plan-view raster of 4 cm cells
   const stride = s.cols * s.rows > 40_000 ? 2 : 1;
-  for (let k = 0; k < s.fate.length; k++) {
+  for (let k = 0; k < s.kind.length; k++) {
     if (stride > 1 && ((k % s.cols) % stride !== 0 || Math.floor(k / s.cols) % stride !== 0)) continue;
-    const fate = s.fate[k];
+    const kind = s.kind[k];
     const l = landings[k];
-    if (fate === Fate.MirrorMiss) {
+    if (kind === HitKind.MirrorMiss) {
       if (!l) continue;
       const t = clipZ(P, l.point, lo, hi);
       if (t) markSegment(c.past, P, l.point, t[0], t[1], visitPast);
@@ -237,7 +238,7 @@ function beamCrossings(s: FrameSample, landings: ReturnType<typeof strayLandings
     const t = clipZ(P, X, lo, hi);
     if (t) markSegment(c.direct, P, X, t[0], t[1], visitDirect);
     // outside the content: blacked out by the mesh, and its black level is the spill figures' business
-    if (fate !== Fate.Lit) continue;
+    if (kind !== HitKind.Lit) continue;
     const end: ReadonlyVec3 = l ? l.point : [s.point[3 * k], s.point[3 * k + 1], s.point[3 * k + 2]];
     if (end[2] >= lo && end[2] <= hi) c.wallAzimuths.push(azAltFromDirection([end[0], end[1], 0])[0] * RAD);
   }

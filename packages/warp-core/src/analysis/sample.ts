@@ -1,18 +1,14 @@
 /**
  * The report's coarse trace of the projector frame: a corner-to-corner vertex grid, what each vertex's
- * light does (its fate), and the dome solid angle and area of each grid cell. Cells whose corners
+ * light does (its `HitKind`, as `classifyHit` refines it for the report), and the dome solid angle and area of each grid cell. Cells whose corners
  * disagree are split (midpoint subdivision) so the lit region's edge — the mirror's silhouette, the
  * cap's rim, the horizon, the content's edge — is followed to a fraction of a pixel.
  */
 import { pixelToRay } from '../optics/projector.js';
 import type { Vec3 } from '../math.js';
-import { allocGridOutput, HitKind, Tracer } from '../trace.js';
+import { allocGridOutput, HitKind, Tracer, type HitKindCode } from '../trace.js';
 import { segmentHitsBody } from './body.js';
 
-/** What a projector pixel's light does, for the report. Numeric codes are used in typed arrays. */
-export const Fate = { MirrorMiss: 0, Lit: 1, Shadow: 2, OutsideContent: 3, BelowHorizon: 4 } as const;
-export type FateCode = (typeof Fate)[keyof typeof Fate];
-export const FATE_NAMES = ['mirror-miss', 'lit', 'shadow', 'outside-content', 'below-horizon'] as const;
 
 export interface FrameSample {
   tracer: Tracer;
@@ -24,7 +20,8 @@ export interface FrameSample {
   /** Projector pixels per cell across and down. */
   cellW: number;
   cellH: number;
-  fate: Uint8Array;
+  /** `HitKind` of each vertex as `classifyHit` gives it: MirrorMiss, Lit, Shadow, OutsideContent or BelowHorizon. */
+  kind: Uint8Array;
   /** Unit direction from the content's eye to the dome point (3 per vertex; NaN on a miss). */
   dir: Float64Array;
   /** Dome point (3 per vertex; on the continued sphere below the springline too; NaN on a miss). */
@@ -45,17 +42,21 @@ export interface SampleOptions {
   vertices: number;
 }
 
-/** Fate of one traced point; the shadow test runs only when the rig has a body. */
-export function fateOf(tracer: Tracer, kind: number, u: number, v: number, X: Vec3, D: Vec3): FateCode {
-  if (kind === HitKind.MirrorMiss) return Fate.MirrorMiss;
+/**
+ * The report's `HitKind` of one traced point: a dome hit becomes Lit, Shadow (of the projector body) or
+ * OutsideContent, an opening of an as-built dome counts as BelowHorizon. The shadow test runs only when
+ * the rig has a body.
+ */
+export function classifyHit(tracer: Tracer, kind: number, u: number, v: number, X: Vec3, D: Vec3): HitKindCode {
+  if (kind === HitKind.MirrorMiss) return HitKind.MirrorMiss;
   // light through an opening of an as-built dome lands in the room, as light below the springline does
-  if (kind === HitKind.BelowHorizon || kind === HitKind.Open) return Fate.BelowHorizon;
+  if (kind === HitKind.BelowHorizon || kind === HitKind.Open) return HitKind.BelowHorizon;
   const du = u - 0.5;
   const dv = v - 0.5;
-  if (du * du + dv * dv > 0.25 + 1e-12) return Fate.OutsideContent;
+  if (du * du + dv * dv > 0.25 + 1e-12) return HitKind.OutsideContent;
   const body = tracer.rig.projector.body;
-  if (body && segmentHitsBody(body, tracer.frame, X, D)) return Fate.Shadow;
-  return Fate.Lit;
+  if (body && segmentHitsBody(body, tracer.frame, X, D)) return HitKind.Shadow;
+  return HitKind.Lit;
 }
 
 /** Traces the vertex grid of about `vertices` points spread evenly over the frame. */
@@ -68,7 +69,7 @@ export function sampleFrame(tracer: Tracer, o: SampleOptions): FrameSample {
   const ys = Float64Array.from({ length: rows }, (_, j) => (j * H) / (rows - 1));
   const g = tracer.grid(xs, ys, allocGridOutput(cols, rows, { points: true, mirrorDistance: true }));
   const n = cols * rows;
-  const fate = new Uint8Array(n);
+  const kind = new Uint8Array(n);
   const dir = new Float64Array(3 * n).fill(Number.NaN);
   const point = new Float64Array(3 * n).fill(Number.NaN);
   const mirrorPoint = new Float64Array(3 * n).fill(Number.NaN);
@@ -89,7 +90,7 @@ export function sampleFrame(tracer: Tracer, o: SampleOptions): FrameSample {
       ray[3 * k + 1] = r[1];
       ray[3 * k + 2] = r[2];
       if (g.kind[k] === HitKind.MirrorMiss) {
-        fate[k] = Fate.MirrorMiss;
+        kind[k] = HitKind.MirrorMiss;
         continue;
       }
       const t = g.mirrorDistance![k];
@@ -107,26 +108,26 @@ export function sampleFrame(tracer: Tracer, o: SampleOptions): FrameSample {
       dir[3 * k] = wx / wl;
       dir[3 * k + 1] = wy / wl;
       dir[3 * k + 2] = wz / wl;
-      fate[k] = fateOf(tracer, g.kind[k], g.u[k], g.v[k], X, D);
+      kind[k] = classifyHit(tracer, g.kind[k], g.u[k], g.v[k], X, D);
     }
   }
-  return { tracer, cols, rows, xs, ys, cellW: W / (cols - 1), cellH: H / (rows - 1), fate, dir, point, mirrorPoint, ray, mirrorDistance, u, v };
+  return { tracer, cols, rows, xs, ys, cellW: W / (cols - 1), cellH: H / (rows - 1), kind, dir, point, mirrorPoint, ray, mirrorDistance, u, v };
 }
 
-/** Traces one point for the subdivision: its fate and direction from the eye (written to `dir`). */
-export function probePoint(tracer: Tracer, x: number, y: number, dir: Vec3): FateCode {
+/** Traces one point for the subdivision: its kind and direction from the eye (written to `dir`). */
+export function probePoint(tracer: Tracer, x: number, y: number, dir: Vec3): HitKindCode {
   const h = tracer.pixel(x, y);
-  if (h.kind === 'mirror-miss') return Fate.MirrorMiss;
+  if (h.kind === 'mirror-miss') return HitKind.MirrorMiss;
   if (h.kind === 'open') {
     dir[0] = h.reflected[0];
     dir[1] = h.reflected[1];
     dir[2] = h.reflected[2];
-    return Fate.BelowHorizon;
+    return HitKind.BelowHorizon;
   }
   dir[0] = h.direction[0];
   dir[1] = h.direction[1];
   dir[2] = h.direction[2];
-  return fateOf(tracer, h.kind === 'dome' ? HitKind.Dome : HitKind.BelowHorizon, h.fisheye[0], h.fisheye[1], h.mirrorPoint, h.domePoint);
+  return classifyHit(tracer, h.kind === 'dome' ? HitKind.Dome : HitKind.BelowHorizon, h.fisheye[0], h.fisheye[1], h.mirrorPoint, h.domePoint);
 }
 
 /**
@@ -142,7 +143,7 @@ export function triangleSolidAngle(a: ArrayLike<number>, ia: number, b: ArrayLik
   return 2 * Math.atan2(Math.abs(triple), den);
 }
 
-export interface CellFields {
+export interface CellMeasures {
   /** Lit solid angle seen from the eye per cell, steradians (subdivided at the edges). */
   omega: Float64Array;
   /** 1 where all four corners are lit: the per-pixel figures below are defined there. */
@@ -163,8 +164,8 @@ const LEAF_SHARE = [0, 1 / 8, 1 / 2, 7 / 8, 1];
  * split's mixed cells estimated from the local density at a lit corner and the share of lit corners
  * (1/8, 1/2, 7/8 for a straight edge through one, two or three).
  */
-export function cellFields(s: FrameSample, depth: number, accept: (fate: number) => boolean = (f) => f === Fate.Lit): CellFields {
-  const { cols, rows, fate, dir, point, cellW, cellH, xs, ys, tracer } = s;
+export function cellMeasures(s: FrameSample, depth: number, accept: (kind: number) => boolean = (f) => f === HitKind.Lit): CellMeasures {
+  const { cols, rows, kind, dir, point, cellW, cellH, xs, ys, tracer } = s;
   const nc = (cols - 1) * (rows - 1);
   const omega = new Float64Array(nc);
   const full = new Uint8Array(nc);
@@ -179,7 +180,7 @@ export function cellFields(s: FrameSample, depth: number, accept: (fate: number)
       const k10 = k00 + 1;
       const k01 = k00 + cols;
       const k11 = k01 + 1;
-      const l00 = accept(fate[k00]), l10 = accept(fate[k10]), l01 = accept(fate[k01]), l11 = accept(fate[k11]);
+      const l00 = accept(kind[k00]), l10 = accept(kind[k10]), l01 = accept(kind[k01]), l11 = accept(kind[k11]);
       const lit = +l00 + +l10 + +l01 + +l11;
       if (lit === 0) continue;
       let w: number;

@@ -7,7 +7,8 @@
  */
 import { azAltFromDirection, RAD, type Vec3 } from '../math.js';
 import { landing, type Surface } from './light.js';
-import { Fate, type FrameSample, vertexWeights } from './sample.js';
+import { type FrameSample, vertexWeights } from './sample.js';
+import { HitKind } from '../trace.js';
 import { azimuthArc, roundFigure as r } from './stats.js';
 
 export interface PixelFigures {
@@ -46,16 +47,16 @@ export interface SpillFigures {
 
 export function pixelFigures(s: FrameSample): PixelFigures {
   const w = vertexWeights(s);
-  const sums = [0, 0, 0, 0, 0];
-  for (let k = 0; k < w.length; k++) sums[s.fate[k]] += w[k];
+  const sums = Object.values(HitKind).map(() => 0);
+  for (let k = 0; k < w.length; k++) sums[s.kind[k]] += w[k];
   return {
     resolution: [...s.tracer.rig.projector.resolution] as [number, number],
-    lit: r(sums[Fate.Lit]),
-    shadow: r(sums[Fate.Shadow]),
-    outsideContent: r(sums[Fate.OutsideContent]),
-    belowHorizon: r(sums[Fate.BelowHorizon]),
-    mirrorMiss: r(sums[Fate.MirrorMiss]),
-    dome: r(sums[Fate.Lit] + sums[Fate.Shadow] + sums[Fate.OutsideContent]),
+    lit: r(sums[HitKind.Lit]),
+    shadow: r(sums[HitKind.Shadow]),
+    outsideContent: r(sums[HitKind.OutsideContent]),
+    belowHorizon: r(sums[HitKind.BelowHorizon]),
+    mirrorMiss: r(sums[HitKind.MirrorMiss]),
+    dome: r(sums[HitKind.Lit] + sums[HitKind.Shadow] + sums[HitKind.OutsideContent]),
   };
 }
 
@@ -64,11 +65,11 @@ export function strayLandings(s: FrameSample): (({ from: Vec3 } & ReturnType<typ
   const rig = s.tracer.rig;
   const P = s.tracer.frame.origin;
   const out: (({ from: Vec3 } & ReturnType<typeof landing>) | null)[] = [];
-  for (let k = 0; k < s.fate.length; k++) {
-    if (s.fate[k] === Fate.MirrorMiss) {
+  for (let k = 0; k < s.kind.length; k++) {
+    if (s.kind[k] === HitKind.MirrorMiss) {
       const d: Vec3 = [s.ray[3 * k], s.ray[3 * k + 1], s.ray[3 * k + 2]];
       out.push({ from: [P[0], P[1], P[2]], ...landing(P, d, rig.dome.radius, rig.dome.floor) });
-    } else if (s.fate[k] === Fate.BelowHorizon) {
+    } else if (s.kind[k] === HitKind.BelowHorizon) {
       const X: Vec3 = [s.mirrorPoint[3 * k], s.mirrorPoint[3 * k + 1], s.mirrorPoint[3 * k + 2]];
       const D = [s.point[3 * k], s.point[3 * k + 1], s.point[3 * k + 2]];
       const dl = Math.hypot(D[0] - X[0], D[1] - X[1], D[2] - X[2]);
@@ -82,7 +83,7 @@ export function strayLandings(s: FrameSample): (({ from: Vec3 } & ReturnType<typ
 export function spillFigures(s: FrameSample, landings = strayLandings(s)): SpillFigures {
   const w = vertexWeights(s);
   const floor = s.tracer.rig.dome.floor;
-  const part = (fate: number): SpillPart => {
+  const part = (kind: number): SpillPart => {
     const by: Record<Surface, number> = { dome: 0, wall: 0, floor: 0 };
     let share = 0;
     const az: number[] = [];
@@ -90,7 +91,7 @@ export function spillFigures(s: FrameSample, landings = strayLandings(s)): Spill
     let hMax = -Infinity;
     for (let k = 0; k < w.length; k++) {
       const l = landings[k];
-      if (s.fate[k] !== fate || l === null) continue;
+      if (s.kind[k] !== kind || l === null) continue;
       share += w[k];
       by[l.surface] += w[k];
       az.push(azAltFromDirection([l.point[0], l.point[1], 0.0])[0] * RAD);
@@ -108,10 +109,10 @@ export function spillFigures(s: FrameSample, landings = strayLandings(s)): Spill
     };
   };
   let outside = 0;
-  for (let k = 0; k < w.length; k++) if (s.fate[k] === Fate.OutsideContent) outside += w[k];
+  for (let k = 0; k < w.length; k++) if (s.kind[k] === HitKind.OutsideContent) outside += w[k];
   return {
-    pastMirror: part(Fate.MirrorMiss),
-    belowHorizon: part(Fate.BelowHorizon),
+    pastMirror: part(HitKind.MirrorMiss),
+    belowHorizon: part(HitKind.BelowHorizon),
     outsideContent: { share: r(outside) },
     heightsFrom: floor === undefined ? 'springline' : 'floor',
     note: "the warp mesh blacks these pixels out, but the projector's black level, menus and splash screen still light them",

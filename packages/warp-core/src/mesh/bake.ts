@@ -7,7 +7,7 @@ import { DEG } from '../math.js';
 import { RigError, type Rig } from '../rig/model.js';
 import { allocGridOutput, Tracer, landsOnDome } from '../trace.js';
 import { edgeRamp, edgeSegments, angularScaleAt, litTest, measureEdgePlacement, type EdgePlacement, type LitTest } from './edge.js';
-import { brightnessFactor, contentVisible, domeAreaOnGrid, fillUnlit, quantile, referenceArea } from './field.js';
+import { brightnessFactor, contentVisible, domeAreaOnGrid, fillUnlit, quantile, referenceArea } from './grid-samples.js';
 import { createMesh, type WarpMesh } from './mesh.js';
 import { notice, type Notice } from '../notice.js';
 
@@ -62,7 +62,7 @@ export interface MeshAccuracy {
   triangles: { errorP99Projector: number; errorMaxProjector: number; errorP99Px: number; errorMaxPx: number; overTolerance: number };
 }
 
-/** Interpolates a vertex field over cell (k00 top-left) at (fx, fy): bilinear, or the two triangles (tl, bl, br) and (tl, br, tr). */
+/** Interpolates per-vertex values over cell (k00 top-left) at (fx, fy): bilinear, or the two triangles (tl, bl, br) and (tl, br, tr). */
 export function interpolateCell(f: ArrayLike<number>, k00: number, cols: number, fx: number, fy: number, triangles: boolean): number {
   const a = f[k00];
   const b = f[k00 + 1];

@@ -12,7 +12,7 @@
  * from it. A feather widens the same ramp.
  */
 import { allocGridOutput, type Tracer } from '../trace.js';
-import { contentVisible, quantile } from './field.js';
+import { contentVisible, quantile } from './grid-samples.js';
 import type { WarpMesh } from './mesh.js';
 
 /** Is projector pixel coordinate (x, y) lit (its light lands on the dome, within the content)? */

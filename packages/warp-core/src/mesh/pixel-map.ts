@@ -5,9 +5,9 @@
 import { DEG } from '../math.js';
 import type { Rig } from '../rig/model.js';
 import type { RemapMap } from '../remap/types.js';
-import { HitKind, Tracer } from '../trace.js';
+import { Tracer } from '../trace.js';
 import { BAKE_DEFAULTS, interpolateCell, type BakeOptions } from './bake.js';
-import { brightnessFactor, contentVisible, domeAreaOnGrid, featherMask, referenceArea } from './field.js';
+import { brightnessFactor, contentVisible, domeAreaOnGrid, featherMask, referenceArea } from './grid-samples.js';
 import type { FillLayoutGrid } from './fill-layout.js';
 import type { WarpMesh } from './mesh.js';
 
@@ -86,7 +86,6 @@ export function pixelMapFromRig(rig: Rig, size: [number, number], options: Parti
   } else {
     for (let k = 0; k < W * H; k++) gain[k] = mask[k];
   }
-  void HitKind;
   return finishMap(g.u, g.v, gain, size, o, W, H);
 }
 

@@ -6,12 +6,12 @@
 import { length, sub } from '../math.js';
 import { RigError, validateRigGeometry, type Rig } from '../rig/model.js';
 import { projectorFrame } from '../optics/projector.js';
-import { Tracer } from '../trace.js';
+import { HitKind, Tracer } from '../trace.js';
 import { bodyCorners } from '../analysis/body.js';
 import { contentSolidAngle, coverageShare } from '../analysis/coverage.js';
 import type { PlacementFigures } from '../analysis/analyze.js';
 import { ARCMIN_PER_RADIAN, cellArcmin } from '../analysis/resolution.js';
-import { cellFields, Fate, sampleFrame, type FrameSample } from '../analysis/sample.js';
+import { cellMeasures, sampleFrame, type FrameSample } from '../analysis/sample.js';
 import { roundFigure, Sorted } from '../analysis/stats.js';
 import type { ProjectorFrame } from '../optics/projector.js';
 
@@ -108,8 +108,8 @@ function focusDepths(samples: FrameSample, frame: ProjectorFrame): { near: numbe
   let near = Infinity;
   let far = -Infinity;
   let lit = 0;
-  for (let k = 0; k < samples.fate.length; k++) {
-    if (samples.fate[k] !== Fate.Lit) continue;
+  for (let k = 0; k < samples.kind.length; k++) {
+    if (samples.kind[k] !== HitKind.Lit) continue;
     lit++;
     const ray = samples.ray;
     const depth = samples.mirrorDistance[k] * (ray[3 * k] * forward[0] + ray[3 * k + 1] * forward[1] + ray[3 * k + 2] * forward[2]);
@@ -135,11 +135,11 @@ export function evaluatePlacement(given: Rig, settings: ScoringSettings): Evalua
   const { depth, objective, maxShadow, minCoverage } = settings;
   const tracer = new Tracer(rig);
   const samples = sampleFrame(tracer, { vertices: settings.vertices });
-  const cells = cellFields(samples, depth);
+  const cells = cellMeasures(samples, depth);
   const contentAngle = contentSolidAngle(tracer);
   const coverage = coverageShare(cells.total, contentAngle);
   let shadow = 0;
-  if (rig.projector.body) shadow = (cellFields(samples, depth, (fate) => fate === Fate.Lit || fate === Fate.Shadow).total - cells.total) / contentAngle;
+  if (rig.projector.body) shadow = (cellMeasures(samples, depth, (kind) => kind === HitKind.Lit || kind === HitKind.Shadow).total - cells.total) / contentAngle;
   const arcmin = new Sorted(cellArcmin(cells));
   const { near, far, lit } = focusDepths(samples, tracer.frame);
   const [width, height] = rig.projector.resolution;
@@ -169,7 +169,7 @@ export function evaluatePlacement(given: Rig, settings: ScoringSettings): Evalua
       coverage: roundFigure(coverage),
       median: roundFigure(arcmin.q(0.5), 3),
       p95: roundFigure(p95, 3),
-      pixelsLit: roundFigure(lit / samples.fate.length),
+      pixelsLit: roundFigure(lit / samples.kind.length),
       focusNear: roundFigure(near, 4),
       focusFar: roundFigure(far, 4),
       bodyShadow: roundFigure(shadow),

@@ -1,5 +1,5 @@
 /**
- * The mesh's fields traced exactly at every projector pixel centre (x + 0.5, y + 0.5): fisheye (u, v),
+ * The mesh's values traced exactly at every projector pixel centre (x + 0.5, y + 0.5): fisheye (u, v),
  * brightness and mask, for the files that can carry one value per projector pixel (an MPCDI alpha map,
  * a full-resolution map) instead of interpolating the grid.
  *
@@ -12,9 +12,9 @@ import type { Rig } from '../rig/model.js';
 import { Tracer, landsOnDome } from '../trace.js';
 import { BAKE_DEFAULTS, type BakeOptions } from './bake.js';
 import { angularScaleAt, edgeRamp, edgeSegments, litTest } from './edge.js';
-import { brightnessFactor, contentVisible, domeAreaOnGrid, fillUnlit, referenceArea } from './field.js';
+import { brightnessFactor, contentVisible, domeAreaOnGrid, fillUnlit, referenceArea } from './grid-samples.js';
 
-export interface PixelFields {
+export interface PixelSamples {
   /** Projector resolution; index k = y·width + x. */
   width: number;
   height: number;
@@ -26,10 +26,10 @@ export interface PixelFields {
   mask: Float32Array;
 }
 
-export type PixelFieldOptions = Pick<BakeOptions, 'brightness' | 'brightnessFloor' | 'feather'>;
+export type PixelSampleOptions = Pick<BakeOptions, 'brightness' | 'brightnessFloor' | 'feather'>;
 
-/** Traces every pixel centre of the rig's projector frame: the fields of {@link PixelFields}. */
-export function pixelFields(rig: Rig, options: Partial<PixelFieldOptions> = {}): PixelFields {
+/** Traces every pixel centre of the rig's projector frame: the values of {@link PixelSamples}. */
+export function pixelSamples(rig: Rig, options: Partial<PixelSampleOptions> = {}): PixelSamples {
   const o = { ...BAKE_DEFAULTS, ...options };
   const tracer = new Tracer(rig);
   const { width: W, height: H } = tracer.frame;

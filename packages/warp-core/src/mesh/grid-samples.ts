@@ -1,5 +1,5 @@
 /**
- * Sampled fields over the projector frame on separable grids: the trace, the dome area each pixel
+ * Values sampled over the projector frame on separable grids: the trace, the dome area each pixel
  * lights (for brightness), and the mask with an optional soft edge.
  */
 import type { Vec3 } from '../math.js';
@@ -206,11 +206,11 @@ export function featherMask(g: GridOutput, fov: number, featherRad: number, lit:
  * Gives unlit grid points finite values (u, v, brightness) by repeatedly averaging lit (or already filled) neighbours, so
  * a GPU interpolating across a cell at the edge samples nearby content instead of junk.
  */
-export function fillUnlit(cols: number, rows: number, known: Uint8Array, ...fields: (Float32Array | Float64Array)[]): void {
+export function fillUnlit(cols: number, rows: number, known: Uint8Array, ...arrays: (Float32Array | Float64Array)[]): void {
   const n = cols * rows;
   const have = Uint8Array.from(known);
   if (!have.some((x) => x === 1)) {
-    for (const f of fields) f.fill(0.5);
+    for (const f of arrays) f.fill(0.5);
     return;
   }
   // Layer by layer outwards from the lit points (breadth first): each layer is the unfilled points
@@ -233,7 +233,7 @@ export function fillUnlit(cols: number, rows: number, known: Uint8Array, ...fiel
       }
   };
   for (let k = 0; k < n; k++) if (have[k]) enqueueAround(k, layer);
-  const F = fields.length;
+  const F = arrays.length;
   while (layer.length > 0) {
     const vals = new Float64Array(layer.length * F);
     for (let q = 0; q < layer.length; q++) {
@@ -248,7 +248,7 @@ export function fillUnlit(cols: number, rows: number, known: Uint8Array, ...fiel
           if (ii < 0 || jj < 0 || ii >= cols || jj >= rows) continue;
           const m = jj * cols + ii;
           if (have[m]) {
-            for (let f = 0; f < F; f++) vals[q * F + f] += fields[f][m];
+            for (let f = 0; f < F; f++) vals[q * F + f] += arrays[f][m];
             c++;
           }
         }
@@ -257,7 +257,7 @@ export function fillUnlit(cols: number, rows: number, known: Uint8Array, ...fiel
     const next: number[] = [];
     for (let q = 0; q < layer.length; q++) {
       const k = layer[q];
-      for (let f = 0; f < F; f++) fields[f][k] = vals[q * F + f];
+      for (let f = 0; f < F; f++) arrays[f][k] = vals[q * F + f];
       have[k] = 1;
     }
     for (const k of layer) enqueueAround(k, next);
