@@ -12,6 +12,11 @@ export interface RunIO {
   /** The folder relative paths are read against. */
   cwd: string;
   env: Record<string, string | undefined>;
+  /**
+   * The frame worker module `warp` runs on its worker threads (default: skyfold's own). For a program
+   * that embeds skyfold and wraps the worker; no command-line option or environment variable sets it.
+   */
+  frameWorker?: URL;
 }
 
 export interface RunContext extends RunIO {

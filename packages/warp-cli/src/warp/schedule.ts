@@ -3,6 +3,7 @@ import type { RemapMap } from '@skyfold/warp-core';
 import { runFrameJob, type FrameJob, type FrameOutcome, type WarpSettings } from './job.js';
 import { FramePool } from './pool.js';
 import type { StopSignal } from './stop-signal.js';
+import { runContext } from '../io/run-context.js';
 
 /**
  * Runs `jobs` on `threads` workers (this thread alone when 1), calling `finish` (which must not throw)
@@ -26,7 +27,7 @@ export async function runJobs<J extends FrameJob>(
     }
     return;
   }
-  const pool = new FramePool(map, settings, threads);
+  const pool = new FramePool(map, settings, threads, runContext().frameWorker);
   try {
     let next = 0;
     const running = new Set<Promise<void>>();
