@@ -24,7 +24,7 @@ export { HitKind, Tracer, allocGridOutput, landsOnDome, tracePixel, type GridOut
 export { domePointFromEye, domePointSeen, locateDirection, type LocateFailure, type LocateResult } from './locate.js';
 
 export { createMesh, meshVertexPosition, type WarpMesh } from './mesh/mesh.js';
-export { BAKE_DEFAULTS, bakeMesh, type BakeOptions, type BakeResult, type MeshAccuracy } from './mesh/bake.js';
+export { BAKE_DEFAULTS, bakeMesh, checkShowsContent, type BakeOptions, type BakeResult, type MeshAccuracy } from './mesh/bake.js';
 export { pixelMapFromFillLayout, pixelMapFromMesh, pixelMapFromRig, type AlphaMap, type SourceOrientation } from './mesh/pixel-map.js';
 export { pixelSamples, type PixelSampleOptions, type PixelSamples } from './mesh/pixel-samples.js';
 export { fillLayoutFromMesh, fillLayoutFromRig, fillSamplePosition, type FillLayoutGrid } from './mesh/fill-layout.js';

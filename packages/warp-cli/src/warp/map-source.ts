@@ -1,6 +1,6 @@
 /** Where a warp's map comes from: an exact per-pixel trace of a rig, or a baked mesh in any format bake writes. */
 import { createHash } from 'node:crypto';
-import { BAKE_DEFAULTS, pixelMapFromFillLayout, pixelMapFromMesh, type AlphaMap, type FillLayoutGrid, pixelMapFromRig, rigToDocument, type RemapMap, type SourceOrientation, type WarpMesh, type Rig } from '@skyfold/warp-core';
+import { BAKE_DEFAULTS, checkShowsContent, pixelMapFromFillLayout, pixelMapFromMesh, RigError, type AlphaMap, type FillLayoutGrid, pixelMapFromRig, rigToDocument, type RemapMap, type SourceOrientation, type WarpMesh, type Rig } from '@skyfold/warp-core';
 import { readBinaryFile, readRig } from '../io/document-file.js';
 import { UserError } from '../errors.js';
 import { decodeMesh, formatFromPath, type MeshFormat } from '../export/index.js';
@@ -128,6 +128,12 @@ export async function loadMapSource(path: string, cacheDir: string | undefined =
     };
   }
   const rig = readRig(path);
+  try {
+    checkShowsContent(rig); // before anything is written: frames of nothing but black help nobody
+  } catch (e) {
+    if (e instanceof RigError) throw new UserError(`${path}: nothing to warp: ${e.message}`);
+    throw e;
+  }
   const key = 'rig:' + JSON.stringify(rigToDocument(rig, 'm', 9));
   return {
     kind: 'rig',

@@ -281,7 +281,7 @@ export function bakeMesh(rig: Rig, options: Partial<BakeOptions> = {}, meta: Rec
     mesh = buildMesh(tracer, cols, rows, o, areaMax, meta, litOf);
     if (iter === 0 && !mesh.mask.some((m) => m > 0) && !litOnCheckGrid(tracer, W, H)) {
       // a mesh of nothing but mask 0 cannot be measured and no player can use it: the rig is wrong
-      throw new RigError('projector', "no vertex of the mesh shows content: the projector's frame misses the mirror, or lands outside content.fov (check projector.lookAt, projector.lensShift and mirror.center)");
+      throw new RigError('projector', `no vertex of the mesh shows content: ${SHOWS_NOTHING}`);
     }
     accuracy = measureAccuracy(tracer, mesh, o.masterSize, o.samplesPerCell, o.tolerance);
     // both the bilinear cell and the two triangles a GPU draws must meet the tolerance
@@ -323,6 +323,18 @@ export function bakeMesh(rig: Rig, options: Partial<BakeOptions> = {}, meta: Rec
   }
   const edge = measureEdgePlacement(litOf, mesh);
   return { mesh, accuracy, edge, litFraction: lit / n, brightnessMin: lit ? bMin : 0, brightnessMax: lit ? bMax : 0, areaMax, notes, options: o };
+}
+
+const SHOWS_NOTHING = "the projector's frame misses the mirror, or lands outside content.fov (check projector.lookAt, projector.lensShift and mirror.center)";
+
+/**
+ * Throws a RigError naming the reason when no point of the projector's frame shows content (the
+ * test bake refuses a mesh by), so that warping straight from the rig refuses it too.
+ */
+export function checkShowsContent(rig: Rig): void {
+  const tracer = new Tracer(rig);
+  const { width: W, height: H } = tracer.frame;
+  if (!litOnCheckGrid(tracer, W, H)) throw new RigError('projector', `no point of the frame shows content: ${SHOWS_NOTHING}`);
 }
 
 /** True when some pixel of a 257-across check grid shows content: a coarse grid may straddle a small lit area. */
