@@ -180,24 +180,126 @@ function editProjector(e: RigDocumentEditor, before: Rig, after: Rig): void {
   if (!sameNumbers(p0.lensShift, p.lensShift)) e.numbers('projector.lensShift', ['projector', 'lensShift'], p0.lensShift, p.lensShift);
 }
 
+/** Where a line's trailing comment starts (a `#` after a space, outside quotes), or -1. */
+function commentStart(line: string): number {
+  let quote = '';
+  for (let i = 0; i < line.length; i++) {
+    const c = line[i];
+    if (quote) {
+      if (c === '\\' && quote === '"') i++;
+      else if (c === quote) quote = '';
+    } else if (c === '"' || c === "'") quote = c;
+    else if (c === '#' && (i === 0 || line[i - 1] === ' ' || line[i - 1] === '\t')) return i;
+  }
+  return -1;
+}
+
+interface CommentedLine {
+  /** The node the line holds, as a path of keys and item numbers ("mirror.center", "dome.walls[1]"). */
+  path: string;
+  /** Column of the `#`, length of the text before it (trailing spaces left out). */
+  column: number;
+  head: number;
+  /** Lines next to each other whose comments share a column form one group. */
+  group: number;
+}
+
 /**
- * The edited text with each trailing comment moved back to the column it had in the original, where
- * the line's new value leaves room (the yaml library writes one space before a comment).
+ * The block-style node path of every line that holds a key or a list item with a trailing comment.
+ * A line walker over indentation, enough for rig files (flow lists and maps stay on their key's line).
+ */
+function commentedLines(text: string): (CommentedLine | undefined)[] {
+  const stack: { indent: number; name: string; item: boolean; items: number }[] = [];
+  const out: (CommentedLine | undefined)[] = [];
+  let group = 0;
+  let last: CommentedLine | undefined;
+  let blockScalar = -1; // indentation of a key whose value is a | or > block: deeper lines are text
+  for (const line of text.split('\n')) {
+    const indent = line.length - line.trimStart().length;
+    const body = line.trim();
+    if (blockScalar >= 0 && (body === '' || indent > blockScalar)) {
+      out.push(undefined);
+      continue;
+    }
+    blockScalar = -1;
+    if (body === '' || body.startsWith('#') || body === '---' || body === '...') {
+      out.push(undefined);
+      if (body !== '' && !body.startsWith('#')) stack.length = 0;
+      last = undefined;
+      continue;
+    }
+    let rest = line.slice(indent);
+    let at = indent;
+    let path: string | undefined;
+    for (;;) {
+      if (rest === '-' || rest.startsWith('- ')) {
+        while (stack.length && (stack.at(-1)!.indent > at || (stack.at(-1)!.indent === at && stack.at(-1)!.item))) stack.pop();
+        const parent = stack.at(-1);
+        const name = `${parent ? parent.name : ''}[${parent ? parent.items++ : 0}]`;
+        stack.push({ indent: at, name, item: true, items: 0 });
+        path = name;
+        const step = rest.length - rest.slice(1).trimStart().length;
+        rest = rest.slice(step);
+        at += step;
+        if (rest === '') break;
+        continue;
+      }
+      const key = /^("(?:[^"\\]|\\.)*"|'[^']*'|[^\s#:][^:#]*?):(?:\s|$)/.exec(rest);
+      if (key) {
+        while (stack.length && stack.at(-1)!.indent >= at) stack.pop();
+        const parent = stack.at(-1);
+        const name = parent ? `${parent.name}.${key[1]}` : key[1];
+        stack.push({ indent: at, name, item: false, items: 0 });
+        path = name;
+        if (/:\s*[|>][-+0-9]*\s*(#.*)?$/.test(rest)) blockScalar = at;
+      }
+      break;
+    }
+    const hash = commentStart(line);
+    if (path === undefined || hash < 0) {
+      out.push(undefined);
+      last = undefined;
+      continue;
+    }
+    const head = line.slice(0, hash).trimEnd().length;
+    if (!last || last.column !== hash) group++;
+    last = { path, column: hash, head, group };
+    out.push(last);
+  }
+  return out;
+}
+
+/**
+ * The edited text with each trailing comment where the user had it: at its old column while the
+ * line's new value leaves a space before it (the yaml library writes one space before a comment). A
+ * value that grew past it moves the comment right, by the gap the user left before it (one to three
+ * spaces), and with it every comment aligned with it on the lines around it, so that a column of
+ * comments stays a column.
  */
 export function keepCommentColumns(original: string, edited: string): string {
-  const columns = new Map<string, number>();
-  for (const line of original.split('\n')) {
-    const m = /^(\s*[\w-]+:)[^#]*?\s+#/.exec(line);
-    if (m) columns.set(m[1], line.indexOf('#', m[1].length));
+  const before = new Map<string, CommentedLine>();
+  for (const line of commentedLines(original)) if (line) before.set(line.path, line);
+  const lines = edited.split('\n');
+  const found = commentedLines(edited);
+  // the column each original group needs: its old one, or more where an edited value grew into it
+  const needs = new Map<number, number>();
+  const gaps = new Map<number, number>();
+  for (const line of before.values()) gaps.set(line.group, Math.min(gaps.get(line.group) ?? Infinity, line.column - line.head));
+  for (const line of found) {
+    const old = line && before.get(line.path);
+    if (!old) continue;
+    const gap = Math.max(1, Math.min(3, gaps.get(old.group)!));
+    const column = line.head < old.column ? old.column : line.head + gap;
+    needs.set(old.group, Math.max(needs.get(old.group) ?? old.column, column));
   }
-  return edited
-    .split('\n')
-    .map((line) => {
-      const m = /^(\s*[\w-]+:)(.*?) #(.*)$/.exec(line);
-      const col = m ? columns.get(m[1]) : undefined;
-      if (!m || col === undefined || m[2].includes('#')) return line;
-      const head = `${m[1]}${m[2]}`;
-      return col > head.length ? `${head.padEnd(col)}#${m[3]}` : line;
+  return lines
+    .map((text, i) => {
+      const line = found[i];
+      const old = line && before.get(line.path);
+      if (!line || !old) return text;
+      const column = needs.get(old.group)!;
+      const head = text.slice(0, line.head);
+      return `${head.padEnd(column)}${text.slice(line.column)}`;
     })
     .join('\n');
 }
