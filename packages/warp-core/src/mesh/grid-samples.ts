@@ -1,9 +1,7 @@
 /**
- * Values sampled over the projector frame on separable grids: the trace, the dome area each pixel
- * lights (for brightness), and the mask with an optional soft edge.
+ * Values sampled over the projector frame on separable grids: the dome area each pixel lights (for
+ * brightness), the brightness factor, what the content holds, and the filling of unlit points.
  */
-import type { Vec3 } from '../math.js';
-import { fisheyeToDirection } from '../optics/fisheye.js';
 import { allocGridOutput, type GridOutput, type Tracer, landsOnDome } from '../trace.js';
 
 /** Rows of the grid traced at a time by domeAreaOnGrid: five traces of a band stay a few MiB. */
@@ -121,85 +119,6 @@ export function contentVisible(tracer: Tracer, u: number, v: number, kind: numbe
   const du = u - 0.5;
   const dv = v - 0.5;
   return du * du + dv * dv <= 0.25 + 1e-12;
-}
-
-/**
- * Soft edge: for each lit grid point, a factor rising smoothly from 0 to 1 over `featherRad` of angle
- * on the dome, measured from the content's edge (exactly, from the fisheye radius) and from the edge
- * of the lit region (a chamfer distance on the grid whose steps cost the angle between neighbours'
- * directions, seen from the eye). Unlit points get 0.
- */
-export function featherMask(g: GridOutput, fov: number, featherRad: number, lit: Uint8Array): Float32Array {
-  const { cols, rows, u, v } = g;
-  const n = cols * rows;
-  const mask = new Float32Array(n);
-  if (!(featherRad > 0)) {
-    for (let k = 0; k < n; k++) mask[k] = lit[k];
-    return mask;
-  }
-  // directions from the fisheye coordinates (equidistant: angle from zenith = ρ·fov)
-  const dir = new Float64Array(3 * n);
-  const d: Vec3 = [0, 0, 0];
-  for (let k = 0; k < n; k++) {
-    if (!lit[k]) continue;
-    fisheyeToDirection(d, u[k], v[k], fov);
-    dir[3 * k] = d[0];
-    dir[3 * k + 1] = d[1];
-    dir[3 * k + 2] = d[2];
-  }
-  const dist = new Float64Array(n).fill(Infinity);
-  for (let j = 0; j < rows; j++) {
-    for (let i = 0; i < cols; i++) {
-      const k = j * cols + i;
-      if (!lit[k]) continue;
-      let edge = i === 0 || j === 0 || i === cols - 1 || j === rows - 1;
-      for (let dj = -1; dj <= 1 && !edge; dj++) for (let di = -1; di <= 1 && !edge; di++) if (!lit[k + dj * cols + di]) edge = true;
-      if (edge && !(i === 0 || j === 0 || i === cols - 1 || j === rows - 1)) dist[k] = 0;
-      else if (edge) dist[k] = Infinity; // the frame's own border is not an edge of the picture
-    }
-  }
-  const angle = (a: number, b: number) => {
-    const d = dir[3 * a] * dir[3 * b] + dir[3 * a + 1] * dir[3 * b + 1] + dir[3 * a + 2] * dir[3 * b + 2];
-    return Math.acos(d > 1 ? 1 : d < -1 ? -1 : d);
-  };
-  const relax = (k: number, m: number) => {
-    if (lit[m] && dist[m] + 0 < dist[k]) {
-      const c = dist[m] + angle(k, m);
-      if (c < dist[k]) dist[k] = c;
-    }
-  };
-  for (let pass = 0; pass < 2; pass++) {
-    for (let j = 0; j < rows; j++)
-      for (let i = 0; i < cols; i++) {
-        const k = j * cols + i;
-        if (!lit[k]) continue;
-        if (i > 0) relax(k, k - 1);
-        if (j > 0) {
-          relax(k, k - cols);
-          if (i > 0) relax(k, k - cols - 1);
-          if (i < cols - 1) relax(k, k - cols + 1);
-        }
-      }
-    for (let j = rows - 1; j >= 0; j--)
-      for (let i = cols - 1; i >= 0; i--) {
-        const k = j * cols + i;
-        if (!lit[k]) continue;
-        if (i < cols - 1) relax(k, k + 1);
-        if (j < rows - 1) {
-          relax(k, k + cols);
-          if (i < cols - 1) relax(k, k + cols + 1);
-          if (i > 0) relax(k, k + cols - 1);
-        }
-      }
-  }
-  for (let k = 0; k < n; k++) {
-    if (!lit[k]) continue;
-    const rim = fov / 2 - Math.hypot(u[k] - 0.5, v[k] - 0.5) * fov;
-    const d = Math.min(dist[k], rim);
-    const t = d >= featherRad ? 1 : d <= 0 ? 0 : d / featherRad;
-    mask[k] = t * t * (3 - 2 * t); // smoothstep
-  }
-  return mask;
 }
 
 /**

@@ -2,12 +2,10 @@
  * The exact per-pixel map for batch warping: every projector pixel centre traced, with its
  * brightness factor and mask, as a RemapMap in dome-master pixel units.
  */
-import { DEG } from '../math.js';
 import type { Rig } from '../rig/model.js';
 import type { RemapMap } from '../remap/types.js';
-import { Tracer } from '../trace.js';
 import { BAKE_DEFAULTS, interpolateCell, type BakeOptions } from './bake.js';
-import { brightnessFactor, contentVisible, domeAreaOnGrid, featherMask, referenceArea } from './grid-samples.js';
+import { pixelSamples } from './pixel-samples.js';
 import type { FillLayoutGrid } from './fill-layout.js';
 import type { WarpMesh } from './mesh.js';
 
@@ -66,27 +64,19 @@ function finishMap(u: ArrayLike<number>, v: ArrayLike<number>, gain: Float32Arra
   return { width: W, height: H, x, y, gain };
 }
 
-/** Traces every projector pixel of the rig: the exact RemapMap onto a source frame of `size` pixels. */
+/**
+ * Traces every projector pixel of the rig: the exact RemapMap onto a source frame of `size` pixels.
+ * Its light factor is the one the exact per-pixel samples carry (pixel-samples.ts): brightness times the
+ * same mask ramp at the exact edge as the bake's, at its narrowest half a pixel, so a pixel the edge
+ * crosses gets the share of it on the lit side instead of all or nothing.
+ */
 export function pixelMapFromRig(rig: Rig, size: [number, number], options: Partial<MapOptions> & SourceOrientation = {}): RemapMap {
   const o = { ...BAKE_DEFAULTS, ...options };
-  const tracer = new Tracer(rig);
-  const { width: W, height: H } = tracer.frame;
-  const xs = Float64Array.from({ length: W }, (_, i) => i + 0.5);
-  const ys = Float64Array.from({ length: H }, (_, j) => j + 0.5);
-  const g = tracer.frameGrid({});
-  const lit = new Uint8Array(W * H);
-  for (let k = 0; k < W * H; k++) lit[k] = contentVisible(tracer, g.u[k], g.v[k], g.kind[k]) ? 1 : 0;
-  const mask = featherMask(g, rig.content.fov, o.feather * DEG, lit);
-  const gain = new Float32Array(W * H);
-  if (o.brightness > 0) {
-    const areaMax = referenceArea(tracer);
-    const area = domeAreaOnGrid(tracer, xs, ys);
-    const bo = { strength: o.brightness, floor: o.brightnessFloor };
-    for (let k = 0; k < W * H; k++) gain[k] = mask[k] > 0 ? mask[k] * brightnessFactor(area[k], areaMax, bo) : 0;
-  } else {
-    for (let k = 0; k < W * H; k++) gain[k] = mask[k];
-  }
-  return finishMap(g.u, g.v, gain, size, o, W, H);
+  const f = pixelSamples(rig, { brightness: o.brightness, brightnessFloor: o.brightnessFloor, feather: o.feather });
+  const n = f.width * f.height;
+  const gain = new Float32Array(n);
+  for (let k = 0; k < n; k++) gain[k] = f.mask[k] > 0 ? f.mask[k] * f.brightness[k] : 0;
+  return finishMap(f.u, f.v, gain, size, o, f.width, f.height);
 }
 
 /** Interpolates a baked mesh at every projector pixel centre over the same two triangles per cell a GPU draws: the RemapMap the mesh implies. */
