@@ -8,7 +8,7 @@ export { LENGTH_UNITS, LengthSyntaxError, METRES_PER_UNIT, formatLength, fromMet
 export { linearToSrgb, srgbToLinear } from './srgb.js';
 export { wordNotice, type Notice } from './notice.js';
 
-export { MAX_PROJECTOR_SIDE, mirrorPole, OptionError, RigError, validateRigGeometry, type ContentModel, type DomeModel, type MirrorModel, type ProjectorBody, type ProjectorModel, type Rig } from './rig/model.js';
+export { MAX_PROJECTOR_SIDE, mirrorPole, OptionError, RigError, validateRigGeometry, type AudienceZone, type EyeBandName, type MirrorPlace, type RoomModel, type ContentModel, type DomeModel, type MirrorModel, type ProjectorBody, type ProjectorModel, type Rig } from './rig/model.js';
 export { rigFromDocument, rigToDocument, shortQuote, type RigDocumentOptions } from './rig/document.js';
 export { cloneRig } from './rig/clone.js';
 export { rigWarnings } from './rig/warnings.js';
@@ -43,6 +43,7 @@ export { EYE_BANDS, describeArc } from './analysis/safety.js';
 export { classifyHit } from './analysis/sample.js';
 export { Sorted } from './analysis/stats.js';
 export { PLAN_DEFAULTS, PLAN_OBJECTIVES, planRig, type PlanCandidate, type PlanObjective, type PlanResult } from './placement/plan.js';
+export { EDGE_SHARE, ROOM_DEFAULTS, resolveRoom, type Room } from './placement/room.js';
 
 export { DOME_PATTERN_DEFAULTS, drawDomePattern, type PatternDot } from './pattern/dome-master.js';
 export { drawMarkerFrame, type Marker } from './pattern/markers.js';

@@ -10,6 +10,7 @@ import { cellMeasures, sampleFrame } from '../src/analysis/sample.js';
 import { contentSolidAngle, coverageShare } from '../src/analysis/coverage.js';
 import { analyzeRig } from '../src/analysis/analyze.js';
 import { evaluatePlacement } from '../src/placement/scoring.js';
+import { OPEN_ROOM } from '../src/placement/room.js';
 
 const IN = 0.0254;
 const FT = 0.3048;
@@ -77,7 +78,7 @@ describe("plan's table is report's figures", () => {
     rig.projector.lookAt = [0, -1.95, 0.25];
     rig.mirror.center = [0, -1.95, 0.15];
     rig.projector.resolution = [480, 300];
-    const p = planRig(rig, { vary: ['projector.position.y'], evaluations: 24, keep: 1, refineVertices: 2000, reportVertices: 5000 });
+    const p = planRig(rig, { vary: ['projector.position.y'], evaluations: 24, keep: 1, room: OPEN_ROOM, refineVertices: 2000, reportVertices: 5000 });
     for (const c of [p.current, ...p.best]) {
       const f = analyzeRig(c.rig, { vertices: 5000, directions: { azimuths: 12, zenithSteps: 6 } }).figures;
       expect(c.figures.coverage).toBe(f.coverage.fraction);

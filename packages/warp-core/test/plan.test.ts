@@ -4,6 +4,10 @@ import { deg, validateRigGeometry, type Rig } from '../src/rig/model.js';
 import { length } from '../src/math.js';
 import { planRig } from '../src/placement/plan.js';
 import { placementViolations } from '../src/placement/scoring.js';
+import { OPEN_ROOM } from '../src/placement/room.js';
+
+/** These cases are about the physical bounds alone: no room beyond them. */
+const room = OPEN_ROOM;
 
 function rig(over: (r: Rig) => void = () => {}): Rig {
   const s = Math.SQRT1_2;
@@ -27,12 +31,12 @@ describe('plan', () => {
     const body = { width: 0.1, length: 0.1, height: 0.05 };
     const g = rig((r) => ((r.projector.throwRatio = 12), (r.projector.body = body)));
     const yStar = Math.sqrt(2.5 ** 2 - 0.05 ** 2 - (0.1 + 0.025) ** 2) - body.length;
-    const p = planRig(g, { vary: ['projector.position.y'], objective: 'coverage', evaluations: 100, seed: 3, refineVertices: 4000, reportVertices: 4000 });
+    const p = planRig(g, { vary: ['projector.position.y'], objective: 'coverage', evaluations: 100, seed: 3, room, refineVertices: 4000, reportVertices: 4000 });
     expect(p.best.length).toBeGreaterThan(0);
     expect(Math.abs(p.best[0].rig.projector.position[1] - yStar)).toBeLessThan(0.02);
     expect(p.best[0].figures.coverage!).toBeGreaterThan(p.current.figures.coverage! * 3);
     // the scan: coverage rises toward y*
-    const cov = (y: number) => planRig(rig((r) => ((r.projector.throwRatio = 12), (r.projector.body = body), (r.projector.position = [0, y, 0.1]))), { vary: ['projector.position.y'], evaluations: 12, keep: 1, refineVertices: 4000, reportVertices: 4000 }).current.figures.coverage!;
+    const cov = (y: number) => planRig(rig((r) => ((r.projector.throwRatio = 12), (r.projector.body = body), (r.projector.position = [0, y, 0.1]))), { vary: ['projector.position.y'], evaluations: 12, keep: 1, room, refineVertices: 4000, reportVertices: 4000 }).current.figures.coverage!;
     expect(cov(1)).toBeLessThan(cov(2));
     expect(cov(2)).toBeLessThan(cov(yStar - 0.01));
   });
@@ -46,7 +50,7 @@ describe('plan', () => {
 
   it('never proposes a placement that breaks a bound, and improves a poor one', () => {
     const poor = rig((r) => ((r.projector.position = [0, -1.3, 0.1]), (r.projector.lookAt = [0, -1.95, 0.15])));
-    const p = planRig(poor, { vary: ['mirror.center', 'projector.position'], objective: 'balanced', evaluations: 240, seed: 5, refineVertices: 4000, reportVertices: 4000 });
+    const p = planRig(poor, { vary: ['mirror.center', 'projector.position'], objective: 'balanced', evaluations: 240, seed: 5, room, refineVertices: 4000, reportVertices: 4000 });
     expect(p.best.length).toBeGreaterThan(0);
     for (const c of p.best) {
       const body = { width: 0.35, length: 0.3, height: 0.15 }; // the nominal body the planner assumes

@@ -2,13 +2,13 @@
 import { basename, dirname, extname, join } from 'node:path';
 import { Option, type Command } from 'commander';
 import { parseDocument } from 'yaml';
-import { formatLength, PLAN_DEFAULTS, PLAN_OBJECTIVES, planRig, RigError, rigToDocument, type PlanCandidate, type PlanObjective, type PlanResult, type Rig } from '@skyfold/warp-core';
+import { formatLength, parseLengthString, toMetres, type LengthUnit, type RoomModel, PLAN_DEFAULTS, PLAN_OBJECTIVES, planRig, RigError, rigToDocument, type PlanCandidate, type PlanObjective, type PlanResult, type Rig } from '@skyfold/warp-core';
 import { readRig } from '../io/document-file.js';
 import { editRigDocument, keepCommentColumns, rigDocumentText } from '../io/rig-edit.js';
 import { writeOutputFile } from '../io/output-file.js';
 import { UserError } from '../errors.js';
 import { printJson, table } from '../format.js';
-import { collect, parsePositiveInt } from '../options.js';
+import { collect, parseNumberIn, parsePositiveInt } from '../options.js';
 import { VERSION } from '../version.js';
 import { setExitCode, writeOut } from '../io/run-context.js';
 import { wordNotice, wordRigError } from '../messages.js';
@@ -19,8 +19,62 @@ interface PlanCliOptions {
   seed: number;
   evaluations: number;
   rays: number;
+  mirrorPlace?: string;
+  lensHeight?: string;
+  audience?: string;
+  leastLit?: number;
   output?: string;
   json?: boolean;
+}
+
+/** Lengths "A,B,…" as the rig file writes them: a bare number in the rig's units, or with its own unit ("80 cm"). */
+function lengthList(text: string, count: number, option: string, what: string, units: LengthUnit): number[] {
+  const parts = text.split(',').map((p) => p.trim());
+  if (parts.length !== count || parts.some((p) => p === '')) throw new UserError(`${option}: expected ${what}, got ${JSON.stringify(text.slice(0, 60))}`);
+  return parts.map((p) => {
+    const n = Number(p);
+    if (Number.isFinite(n)) return toMetres(n, units);
+    try {
+      return parseLengthString(p);
+    } catch {
+      throw new UserError(`${option}: expected ${what} (numbers in the rig's units, or lengths such as "80 cm"), got ${JSON.stringify(p.slice(0, 60))}`);
+    }
+  });
+}
+
+/** The room options, over the rig's `room` section. */
+export function roomOptions(opts: PlanCliOptions, units: LengthUnit): RoomModel {
+  const room: RoomModel = {};
+  const place = opts.mirrorPlace?.trim();
+  if (place !== undefined) {
+    const ends = /^(along|within)\s+(\S+)\s+(\S+)$/.exec(place);
+    if (place === 'fixed' || place === 'edge') room.mirror = { kind: place };
+    else if (ends) {
+      const a = lengthList(ends[2], 3, '--mirror-place', 'a point X,Y,Z', units) as [number, number, number];
+      const b = lengthList(ends[3], 3, '--mirror-place', 'a point X,Y,Z', units) as [number, number, number];
+      if (ends[1] === 'along') {
+        if (Math.hypot(a[0] - b[0], a[1] - b[1], a[2] - b[2]) < 1e-6) throw new UserError('--mirror-place: the two ends of "along" must differ');
+        room.mirror = { kind: 'along', from: a, to: b };
+      } else {
+        room.mirror = { kind: 'within', min: [0, 1, 2].map((i) => Math.min(a[i], b[i])) as [number, number, number], max: [0, 1, 2].map((i) => Math.max(a[i], b[i])) as [number, number, number] };
+      }
+    } else throw new UserError(`--mirror-place: expected fixed, edge, "along X,Y,Z X,Y,Z" or "within X,Y,Z X,Y,Z", got ${JSON.stringify(place.slice(0, 60))}`);
+  }
+  if (opts.lensHeight !== undefined) {
+    const [lo, hi] = lengthList(opts.lensHeight, 2, '--lens-height', 'LOW,HIGH above the floor', units);
+    if (!(lo >= 0) || hi < lo) throw new UserError(`--lens-height: expected LOW,HIGH above the floor, lowest first, got ${JSON.stringify(opts.lensHeight.slice(0, 60))}`);
+    room.lensHeight = [lo, hi];
+  }
+  if (opts.audience !== undefined) {
+    if (opts.audience.trim() === 'none') room.audience = null;
+    else {
+      const [x, y, r] = lengthList(opts.audience, 3, '--audience', 'X,Y,RADIUS (a circle on the floor) or none', units);
+      if (!(r > 0)) throw new UserError(`--audience: expected a positive radius, got ${JSON.stringify(opts.audience.slice(0, 60))}`);
+      room.audience = { center: [x, y], radius: r, eyes: ['floor-seated', 'seated', 'standing'] };
+    }
+  }
+  if (opts.leastLit !== undefined) room.leastLit = opts.leastLit;
+  return room;
 }
 
 function defaultOutput(rigPath: string): string {
@@ -78,6 +132,10 @@ export function registerPlan(program: Command): void {
     .addOption(new Option('--objective <name>', 'what to optimize').choices(PLAN_OBJECTIVES as string[]).default(PLAN_DEFAULTS.objective))
     .option('--seed <n>', 'seed of the search; the same seed gives the same answer', (s) => parsePositiveInt(s, 'a positive whole number'), PLAN_DEFAULTS.seed)
     .option('--evaluations <n>', 'candidate placements to try (more is slower and surer)', (s) => parsePositiveInt(s), PLAN_DEFAULTS.evaluations)
+    .option('--mirror-place <place>', "where the mirror may go: fixed, edge, \"along X,Y,Z X,Y,Z\" (a segment) or \"within X,Y,Z X,Y,Z\" (a box); in the rig's units (default: the rig's room.mirror, else edge)")
+    .option('--lens-height <low,high>', "lens height above the floor, lowest and highest (a table, a stand; default: room.lensHeight, else 40 cm to 1.6 m)")
+    .option('--audience <x,y,radius>', "the audience's circle on the floor: no projector there, the beam clear of eye heights over it; or none (default: room.audience)")
+    .option('--least-lit <share>', "least share of the projector's pixels on the content (default: room.leastLit, else 0.25)", parseNumberIn(0, 0.99))
     .option('--rays <n>', 'about how many projector-frame points to trace when the table\'s rigs are measured, as `report --rays` does', (s) => parsePositiveInt(s), PLAN_DEFAULTS.reportVertices)
     .option('-o, --output <file>', 'where to write the best rig (default: RIG.planned.yaml beside the rig)')
     .option('--json', 'machine-readable output')
@@ -91,7 +149,7 @@ export function registerPlan(program: Command): void {
       if (opts.rays < 1000 || opts.rays > 2_000_000) throw new UserError(`--rays: expected a number from 1000 to 2000000, got ${opts.rays}`);
       let result: PlanResult;
       try {
-        result = planRig(rig, { vary: opts.vary ?? [...PLAN_DEFAULTS.vary], objective: opts.objective, seed: opts.seed, evaluations: opts.evaluations, reportVertices: opts.rays });
+        result = planRig(rig, { vary: opts.vary ?? [...PLAN_DEFAULTS.vary], objective: opts.objective, seed: opts.seed, evaluations: opts.evaluations, reportVertices: opts.rays, room: roomOptions(opts, rig.units) });
       } catch (e) {
         if (e instanceof RigError) throw new UserError(wordRigError(e));
         throw e;

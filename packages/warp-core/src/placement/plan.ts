@@ -7,7 +7,8 @@
  */
 import { DEG, normalize, RAD, type Vec3 } from '../math.js';
 import { cloneRig } from '../rig/clone.js';
-import { OptionError, type Rig } from '../rig/model.js';
+import { OptionError, type Rig, type RoomModel } from '../rig/model.js';
+import { resolveRoom, type Room } from './room.js';
 import { notice, type Notice } from '../notice.js';
 import { roundFigure } from '../analysis/stats.js';
 import { placementFigures, REPORT_DEFAULTS } from '../analysis/analyze.js';
@@ -42,6 +43,8 @@ export interface PlanOptions {
    * re-measurement), last with done = total; the caller draws any progress. Optional.
    */
   onProgress?: (done: number, total: number) => void;
+  /** The room, over the rig's own `room` section field by field (README "Planning"). */
+  room?: RoomModel;
 }
 
 export const PLAN_DEFAULTS: Readonly<PlanOptions> = {
@@ -81,16 +84,19 @@ export interface PlanResult {
   vary: string[];
   /** The bounds searched, by field name. */
   bounds: Record<string, [number, number]>;
+  /** The room the candidates respect (the rig's, the options', the defaults). */
+  room: Room;
   notes: Notice[];
 }
 
 const AXES = ['x', 'y', 'z'] as const;
 
 /** The dimensions for the `vary` list; throws OptionError naming a field it cannot vary. */
-function dimensions(rig: Rig, vary: string[], notes: Notice[]): Dimension[] {
+function dimensions(rig: Rig, vary: string[], room: Room, notes: Notice[]): Dimension[] {
   const domeRadius = rig.dome.radius;
   const mirrorRadius = rig.mirror.radius;
-  const floorHeight = rig.dome.floor !== undefined ? -rig.dome.floor : -0.5 * domeRadius;
+  const floorHeight = room.floorZ;
+  const place = room.mirror;
   if (rig.dome.floor === undefined) {
     notes.push(notice('plan.floor-assumed', 'dome.floor is not given: the search keeps parts above {length:depth} below the springline', { parameter: 'dome.floor', lengths: { depth: -floorHeight } }));
   }
@@ -110,16 +116,41 @@ function dimensions(rig: Rig, vary: string[], notes: Notice[]): Dimension[] {
       found.push({ name: 'mirror.axis.elevation', lo: -30, hi: 90, apply: (candidate, value) => setAxis(candidate, undefined, value) });
       continue;
     }
+    if (base === 'mirror.center' && place.kind === 'fixed') {
+      if (!seen.has('mirror.fixed')) notes.push(notice('plan.mirror-fixed', `room.mirror is fixed: ${field} is not searched`, { parameter: 'room.mirror' }));
+      seen.add('mirror.fixed');
+      continue;
+    }
+    if (base === 'mirror.center' && place.kind === 'along') {
+      if (seen.has('mirror.along')) continue;
+      seen.add('mirror.along');
+      const { from, to } = place;
+      // the share of the way from the segment's first end to its second
+      found.push({
+        name: 'mirror.along',
+        lo: 0,
+        hi: 1,
+        apply: (candidate, t) => {
+          for (let a = 0; a < 3; a++) {
+            const value = from[a] + t * (to[a] - from[a]);
+            if (!varyLookAt) candidate.projector.lookAt[a] += value - candidate.mirror.center[a];
+            candidate.mirror.center[a] = value;
+          }
+        },
+      });
+      continue;
+    }
     for (const axisName of component ? [component] : AXES) {
       const name = `${base}.${axisName}`;
       if (seen.has(name)) continue;
       seen.add(name);
       const axis = AXES.indexOf(axisName as 'x');
       if (base === 'mirror.center') {
+        const within = place.kind === 'within' ? place : null;
         found.push({
           name,
-          lo: axis < 2 ? -domeRadius + mirrorRadius : floorHeight + mirrorRadius,
-          hi: domeRadius - mirrorRadius,
+          lo: Math.max(axis < 2 ? -domeRadius + mirrorRadius : floorHeight + mirrorRadius, within ? within.min[axis] : -Infinity),
+          hi: Math.min(domeRadius - mirrorRadius, within ? within.max[axis] : Infinity),
           apply: (candidate, value) => {
             const moved = value - candidate.mirror.center[axis];
             candidate.mirror.center[axis] = value;
@@ -127,14 +158,17 @@ function dimensions(rig: Rig, vary: string[], notes: Notice[]): Dimension[] {
           },
         });
       } else if (base === 'projector.position') {
-        found.push({ name, lo: axis < 2 ? -domeRadius : floorHeight + 0.05, hi: domeRadius, apply: (candidate, value) => (candidate.projector.position[axis] = value) });
+        // the lens's height within room.lensHeight above the floor
+        const lo = axis < 2 ? -domeRadius : Math.max(floorHeight + 0.05, floorHeight + room.lensHeight[0]);
+        const hi = axis < 2 ? domeRadius : Math.min(domeRadius, floorHeight + room.lensHeight[1]);
+        found.push({ name, lo, hi: Math.max(lo, hi), apply: (candidate, value) => (candidate.projector.position[axis] = value) });
       } else {
         // aimed within 1.5 mirror radii of the mirror's centre
         found.push({ name, lo: -1.5 * mirrorRadius, hi: 1.5 * mirrorRadius, apply: (candidate, value) => (candidate.projector.lookAt[axis] = candidate.mirror.center[axis] + value) });
       }
     }
   }
-  if (found.length === 0) throw new OptionError('vary', 'nothing to vary');
+  if (found.length === 0) throw new OptionError('vary', 'nothing to vary (room.mirror fixes the mirror)');
   // apply the mirror before the aim that is measured from it
   const isAim = (d: Dimension) => d.name.startsWith('projector.lookAt');
   return [...found.filter((d) => !isAim(d)), ...found.filter(isAim)];
@@ -152,15 +186,25 @@ function setAxis(candidate: Rig, azimuth: number | undefined, elevation: number 
   candidate.mirror.axis = [Math.cos(el) * Math.sin(az), Math.cos(el) * Math.cos(az), Math.sin(el)];
 }
 
-function currentValue(rig: Rig, dimension: Dimension): number {
+function currentValue(rig: Rig, dimension: Dimension, room: Room): number {
   const cut = dimension.name.lastIndexOf('.');
   const base = dimension.name.slice(0, cut);
   const component = dimension.name.slice(cut + 1);
+  if (dimension.name === 'mirror.along') return alongShare(rig, room);
   if (base === 'mirror.axis') return axisAngles(rig.mirror.axis)[component === 'azimuth' ? 0 : 1];
   const axis = AXES.indexOf(component as 'x');
   if (base === 'mirror.center') return rig.mirror.center[axis];
   if (base === 'projector.position') return rig.projector.position[axis];
   return rig.projector.lookAt[axis] - rig.mirror.center[axis];
+}
+
+/** Where the mirror's centre sits along room.mirror.along, as a share of the way (0 when not along one). */
+function alongShare(rig: Rig, room: Room): number {
+  const m = room.mirror;
+  if (m.kind !== 'along') return 0;
+  const d = [0, 1, 2].map((a) => m.to[a] - m.from[a]);
+  const l2 = d[0] ** 2 + d[1] ** 2 + d[2] ** 2;
+  return [0, 1, 2].reduce((sum, a) => sum + (rig.mirror.center[a] - m.from[a]) * d[a], 0) / l2;
 }
 
 /** The rig with the searched values written in. */
@@ -192,10 +236,11 @@ export function planRig(rig: Rig, options: Partial<PlanOptions> = {}): PlanResul
     const text = 'projector.body is not given: a {length:width} × {length:length} × {length:height} body is assumed to keep the projector out of the reflected light';
     notes.push(notice('plan.body-assumed', text, { parameter: 'projector.body', lengths: { ...NOMINAL_BODY } }));
   }
-  const dims = dimensions(rig, settings.vary, notes);
-  const coarse: ScoringSettings = { objective: settings.objective, vertices: settings.vertices, depth: 2, clearance: settings.clearance, maxShadow: settings.maxShadow, minCoverage: 0 };
+  const room = resolveRoom(rig, { ...(options.maxShadow !== undefined ? { maxShadow: options.maxShadow } : {}), ...settings.room }, notes);
+  const dims = dimensions(rig, settings.vary, room, notes);
+  const coarse: ScoringSettings = { objective: settings.objective, vertices: settings.vertices, depth: 2, clearance: settings.clearance, maxShadow: room.maxShadow, minCoverage: 0, room };
   const fine: ScoringSettings = { ...coarse, vertices: Math.max(settings.vertices, settings.refineVertices), depth: 3 };
-  const start = dims.map((d) => Math.min(d.hi, Math.max(d.lo, currentValue(rig, d))));
+  const start = dims.map((d) => Math.min(d.hi, Math.max(d.lo, currentValue(rig, d, room))));
   // steps: the current rig's coarse score, the search, the best few and the current rig re-measured
   const total = 1 + settings.evaluations + settings.keep + 1;
   let done = 0;
@@ -227,7 +272,8 @@ export function planRig(rig: Rig, options: Partial<PlanOptions> = {}): PlanResul
       step();
       return { rig: candidate, figures: reported(candidate, check), values: values(entry.point), check };
     })
-    .filter((c) => c.check.violation === 0)
+    // the lit share as report counts it, too: the table never shows a candidate below room.leastLit
+    .filter((c) => c.check.violation === 0 && (c.figures.pixelsLit ?? 0) >= room.leastLit)
     .map(({ check: _check, ...c }) => c)
     .sort((a, b) => (b.figures.score ?? 0) - (a.figures.score ?? 0));
   const currentCheck = evaluatePlacement(rig, fine);
@@ -243,6 +289,7 @@ export function planRig(rig: Rig, options: Partial<PlanOptions> = {}): PlanResul
     seed: settings.seed,
     vary: settings.vary,
     bounds,
+    room,
     notes,
   };
 }

@@ -14,6 +14,7 @@ import { ARCMIN_PER_RADIAN, cellArcmin } from '../analysis/resolution.js';
 import { cellMeasures, sampleFrame, type FrameSample } from '../analysis/sample.js';
 import { roundFigure, Sorted } from '../analysis/stats.js';
 import type { ProjectorFrame } from '../optics/projector.js';
+import { roomLightViolations, roomPlaceViolations, type Room } from './room.js';
 
 export type PlanObjective = 'coverage' | 'sharpness' | 'balanced';
 export const PLAN_OBJECTIVES: readonly PlanObjective[] = ['coverage', 'sharpness', 'balanced'];
@@ -54,6 +55,8 @@ export interface ScoringSettings {
   maxShadow: number;
   /** With the sharpness objective: the least coverage a candidate must keep. */
   minCoverage: number;
+  /** The room the placement must respect; none: only the physical bounds. */
+  room?: Room;
 }
 
 export interface Evaluation {
@@ -132,6 +135,8 @@ export function evaluatePlacement(given: Rig, settings: ScoringSettings): Evalua
   const rig: Rig = given.projector.body ? given : { ...given, projector: { ...given.projector, body: { ...NOMINAL_BODY } } };
   const bounds = placementViolations(rig, settings.clearance);
   if (bounds.total > 0) return { figures: NO_FIGURES, violation: bounds.total, reasons: bounds.reasons };
+  const place = settings.room ? roomPlaceViolations(rig, settings.room, settings.clearance) : { total: 0, reasons: [] };
+  if (place.total > 0) return { figures: NO_FIGURES, violation: place.total, reasons: place.reasons };
   const { depth, objective, maxShadow, minCoverage } = settings;
   const tracer = new Tracer(rig);
   const samples = sampleFrame(tracer, { vertices: settings.vertices });
@@ -159,6 +164,11 @@ export function evaluatePlacement(given: Rig, settings: ScoringSettings): Evalua
   if (lit === 0) {
     violation += 1;
     reasons.push('no pixel lights the content');
+  }
+  if (settings.room) {
+    const light = roomLightViolations(samples, settings.room);
+    violation += light.total;
+    reasons.push(...light.reasons);
   }
   if (objective === 'sharpness' && coverage < minCoverage) {
     violation += minCoverage - coverage;

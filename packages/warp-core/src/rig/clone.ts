@@ -25,5 +25,6 @@ export function cloneRig(rig: Rig): Rig {
       body: p.body ? { ...p.body } : undefined,
     },
     content: { ...rig.content, eye: copy3(rig.content.eye) },
+    ...(rig.room ? { room: structuredClone(rig.room) } : {}),
   };
 }

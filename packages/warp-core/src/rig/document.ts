@@ -3,7 +3,7 @@
  * every error names the dotted field, what was expected and what came.
  */
 import { DEG, length, normalize, RAD, type Vec3 } from '../math.js';
-import { MAX_PROJECTOR_SIDE, RigError, validateRigGeometry, type ProjectorBody, type Rig } from './model.js';
+import { MAX_PROJECTOR_SIDE, RigError, validateRigGeometry, type EyeBandName, type ProjectorBody, type Rig, type RoomModel } from './model.js';
 import { DomeMesh, MAX_DOME_TRIANGLES, type TriangleSoup } from '../optics/dome-mesh.js';
 import { canonicalUnit, fromMetres, isLengthUnit, LENGTH_UNITS, LengthSyntaxError, METRES_PER_UNIT, parseLengthString, type LengthUnit } from '../units.js';
 
@@ -18,14 +18,73 @@ const MIN_FOV = 0.01;
 
 /** The fields a rig document may hold, by section; used for unknown-field checks with a did-you-mean. */
 export const RIG_FIELDS: Readonly<Record<string, readonly string[]>> = {
-  '': ['units', 'name', 'notes', 'dome', 'projector', 'mirror', 'content'],
+  '': ['units', 'name', 'notes', 'dome', 'projector', 'mirror', 'content', 'room'],
   dome: ['radius', 'diameter', 'floor', 'mesh', 'meshUnits'],
   mirror: ['radius', 'cap', 'center', 'pole', 'axis', 'capAngle'],
   'mirror.cap': ['width', 'depth'],
   projector: ['position', 'lookAt', 'roll', 'up', 'resolution', 'throwRatio', 'lensShift', 'body', 'aperture', 'minFocus'],
   'projector.body': ['width', 'length', 'height'],
   content: ['fov', 'eye'],
+  room: ['mirror', 'lensHeight', 'audience', 'leastLit', 'maxShadow'],
+  'room.mirror': ['along', 'within'],
+  'room.audience': ['center', 'radius', 'eyes'],
 };
+
+const EYE_BAND_NAMES: readonly EyeBandName[] = ['floor-seated', 'seated', 'standing'];
+
+/** The `room` section: where the planner may put things (README "Planning"). */
+function roomFromDocument(doc: Doc, r: FieldReader): RoomModel | undefined {
+  const room = section(doc, 'room', false);
+  if (!room) return undefined;
+  checkKnownFields(room, 'room', RIG_FIELDS.room);
+  const out: RoomModel = {};
+  if (room.mirror !== undefined) {
+    const m = room.mirror;
+    if (m === 'fixed' || m === 'edge') out.mirror = { kind: m };
+    else if (typeof m === 'object' && m !== null && !Array.isArray(m)) {
+      const place = m as Doc;
+      checkKnownFields(place, 'room.mirror', RIG_FIELDS['room.mirror']);
+      const keys = Object.keys(place);
+      if (keys.length !== 1) throw new RigError('room.mirror', 'give one of along or within');
+      const key = keys[0] as 'along' | 'within';
+      const ends = place[key];
+      if (!Array.isArray(ends) || ends.length !== 2) throw new RigError(`room.mirror.${key}`, `expected two points [[x, y, z], [x, y, z]], got ${showValue(ends)}`);
+      const a = r.point(ends[0], `room.mirror.${key}[0]`);
+      const b = r.point(ends[1], `room.mirror.${key}[1]`);
+      if (key === 'along') {
+        if (length([b[0] - a[0], b[1] - a[1], b[2] - a[2]]) < 1e-6) throw new RigError('room.mirror.along', 'its two ends must differ');
+        out.mirror = { kind: 'along', from: a, to: b };
+      } else {
+        out.mirror = { kind: 'within', min: [Math.min(a[0], b[0]), Math.min(a[1], b[1]), Math.min(a[2], b[2])], max: [Math.max(a[0], b[0]), Math.max(a[1], b[1]), Math.max(a[2], b[2])] };
+      }
+    } else throw new RigError('room.mirror', `expected fixed, edge, {along: [A, B]} or {within: [A, B]}, got ${showValue(m)}`);
+  }
+  if (room.lensHeight !== undefined) {
+    const h = room.lensHeight;
+    if (!Array.isArray(h) || h.length !== 2) throw new RigError('room.lensHeight', `expected two heights above the floor [lowest, highest], got ${showValue(h)}`);
+    const lo = r.length(h[0], 'room.lensHeight[0]', 'non-negative');
+    const hi = r.length(h[1], 'room.lensHeight[1]', 'non-negative');
+    if (hi < lo) throw new RigError('room.lensHeight', `expected the lowest height first, got ${showValue(h)}`);
+    out.lensHeight = [lo, hi];
+  }
+  if (room.audience === 'none') out.audience = null;
+  else if (room.audience !== undefined) {
+    const a = section(room, 'audience', true)!;
+    checkKnownFields(a, 'room.audience', RIG_FIELDS['room.audience']);
+    const c = need(a, 'center', 'room.audience');
+    if (!Array.isArray(c) || c.length !== 2) throw new RigError('room.audience.center', `expected a floor point [x, y], got ${showValue(c)}`);
+    const eyes = a.eyes === undefined ? [...EYE_BAND_NAMES] : a.eyes;
+    if (!Array.isArray(eyes) || !eyes.every((e) => EYE_BAND_NAMES.includes(e as EyeBandName))) throw new RigError('room.audience.eyes', `expected a list of ${EYE_BAND_NAMES.join(', ')}, got ${showValue(a.eyes)}`);
+    out.audience = {
+      center: [r.length(c[0], 'room.audience.center[0]'), r.length(c[1], 'room.audience.center[1]')],
+      radius: r.length(need(a, 'radius', 'room.audience'), 'room.audience.radius', 'positive'),
+      eyes: [...new Set(eyes as EyeBandName[])],
+    };
+  }
+  if (room.leastLit !== undefined) out.leastLit = r.number(room.leastLit, 'room.leastLit', (x) => x >= 0 && x < 1, 'a share from 0 to below 1 (0.25 = a quarter of the pixels)');
+  if (room.maxShadow !== undefined) out.maxShadow = r.number(room.maxShadow, 'room.maxShadow', (x) => x >= 0 && x <= 1, 'a share from 0 to 1');
+  return out;
+}
 
 /** Error lines quote at most this much of the input (a file may hold megabytes in one token). */
 const QUOTE_CHARS = 60;
@@ -295,6 +354,7 @@ export function rigFromDocument(input: unknown, options: RigDocumentOptions = {}
   }
   if (doc.notes !== undefined && typeof doc.notes !== 'string') throw new RigError('notes', `expected text, got ${showValue(doc.notes)}`);
 
+  const room = roomFromDocument(doc, r);
   const rig: Rig = {
     units,
     name,
@@ -302,6 +362,7 @@ export function rigFromDocument(input: unknown, options: RigDocumentOptions = {}
     mirror: { center, radius: mirrorRadius, axis, capAngle },
     projector: { position, lookAt, roll, up, resolution: [resV[0], resV[1]], throwRatio, lensShift, body, aperture, minFocus },
     content: { fov: fovDeg * DEG, eye },
+    ...(room ? { room } : {}),
   };
   validateRigGeometry(rig);
   return rig;
@@ -387,5 +448,19 @@ export function rigToDocument(rig: Rig, units: LengthUnit = rig.units, digits = 
   if (p.minFocus !== undefined) proj.minFocus = L(p.minFocus);
   doc.projector = proj;
   doc.content = { fov: round(rig.content.fov * RAD, 9), eye: P(rig.content.eye) };
+  if (rig.room) doc.room = roomToDocument(rig.room, L);
   return doc;
+}
+
+function roomToDocument(room: RoomModel, L: (m: number) => number): Doc {
+  const P = (v: readonly number[]) => v.map((x) => L(x));
+  const out: Doc = {};
+  const m = room.mirror;
+  if (m) out.mirror = m.kind === 'fixed' || m.kind === 'edge' ? m.kind : m.kind === 'along' ? { along: [P(m.from), P(m.to)] } : { within: [P(m.min), P(m.max)] };
+  if (room.lensHeight) out.lensHeight = P(room.lensHeight);
+  if (room.audience === null) out.audience = 'none';
+  else if (room.audience) out.audience = { center: P(room.audience.center), radius: L(room.audience.radius), eyes: [...room.audience.eyes] };
+  if (room.leastLit !== undefined) out.leastLit = room.leastLit;
+  if (room.maxShadow !== undefined) out.maxShadow = room.maxShadow;
+  return out;
 }

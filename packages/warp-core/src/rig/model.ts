@@ -59,6 +59,38 @@ export interface ContentModel {
   eye: Vec3;
 }
 
+/** Where the planner may put the mirror's centre. */
+export type MirrorPlace =
+  | { kind: 'fixed' }
+  /** No nearer the dome's axis (horizontally) than EDGE_SHARE of the dome radius: the middle stays free. */
+  | { kind: 'edge' }
+  | { kind: 'along'; from: Vec3; to: Vec3 }
+  | { kind: 'within'; min: Vec3; max: Vec3 };
+
+/** The eye-height bands of the report's safety figures (`analysis/safety.ts` EYE_BANDS). */
+export type EyeBandName = 'floor-seated' | 'seated' | 'standing';
+
+/** The audience's part of the floor: a circle seen from above. */
+export interface AudienceZone {
+  center: [number, number];
+  radius: number;
+  /** Eye heights the beam between lens and mirror must stay clear of over the zone. */
+  eyes: EyeBandName[];
+}
+
+/** The room as the planner must respect it (rig section `room`; every field optional). */
+export interface RoomModel {
+  mirror?: MirrorPlace;
+  /** Lowest and highest lens height above the floor (a table, a stand). */
+  lensHeight?: [number, number];
+  /** The audience's circle; null: no audience zone at all. */
+  audience?: AudienceZone | null;
+  /** Least share of the projector's pixels that must light the content. */
+  leastLit?: number;
+  /** Largest share of the content's dome the projector's body may hide. */
+  maxShadow?: number;
+}
+
 export interface Rig {
   /** The units the rig file used; output in a person's units follows it. */
   units: LengthUnit;
@@ -67,6 +99,8 @@ export interface Rig {
   mirror: MirrorModel;
   projector: ProjectorModel;
   content: ContentModel;
+  /** Only the planner reads it. */
+  room?: RoomModel;
 }
 
 /**
