@@ -394,8 +394,8 @@ function allFinite(v: readonly number[]): boolean {
   return v.every(Number.isFinite);
 }
 
-/** Every known dotted field path (with point indices), and '' for the document itself. */
-const KNOWN_PATH = /^(|units|name|notes|dome(\.(radius|diameter|floor))?|mirror(\.(radius|center(\[[0-2]\])?|axis|capAngle|cap(\.(width|depth))?))?|projector(\.(position(\[[0-2]\])?|lookAt(\[[0-2]\])?|roll|up|resolution|throwRatio|lensShift|body(\.(width|length|height))?|aperture|minFocus))?|content(\.(fov|eye(\[[0-2]\])?))?|(projector|dome|content|mirror|mirror\.cap|projector\.body)?\.?[A-Za-z_$][\w$]*)$/;
+/** Every known dotted field path (with point indices), and '' for the document itself (the room section's too). */
+const KNOWN_PATH = /^(|units|name|notes|dome(\.(radius|diameter|floor))?|mirror(\.(radius|center(\[[0-2]\])?|axis|capAngle|cap(\.(width|depth))?))?|projector(\.(position(\[[0-2]\])?|lookAt(\[[0-2]\])?|roll|up|resolution|throwRatio|lensShift|body(\.(width|length|height))?|aperture|minFocus))?|content(\.(fov|eye(\[[0-2]\])?))?|room(\.(mirror(\.(along|within)(\[[01]\](\[[0-2]\])?)?)?|lensHeight(\[[01]\])?|audience(\.(center(\[[01]\])?|radius|eyes))?|leastLit|maxShadow))?|(projector|dome|content|mirror|mirror\.cap|projector\.body|room|room\.mirror|room\.audience)?\.?[A-Za-z_$][\w$]*)$/;
 
 describe('fuzzed rig documents', () => {
   it('give a RigError naming a field, or a valid rig whose traced pixels hold no NaN', () => {
