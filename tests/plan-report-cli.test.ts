@@ -8,13 +8,17 @@ import { join } from 'node:path';
 import { describe, expect, it } from 'vitest';
 import { analyzeRig } from '@skyfold/warp-core';
 import { loadRig } from '@skyfold/warp-cli';
-import { demoRigText, skyfold, tempDir } from './support.js';
+import { FIXTURES, skyfold, tempDir } from './support.js';
+import { readFileSync as readText } from 'node:fs';
+
+/** The deliberately poor placement with a small projector: plan has something to improve. */
+const poorRig = (w: number, h: number) => readText(join(FIXTURES, 'poor-placement.yaml'), 'utf8').replace('resolution: [1920, 1200]', `resolution: [${w}, ${h}]`);
 
 const dir = tempDir('plan-report');
 
 describe('plan and report', () => {
   it("give the same figures for plan's best rig and the current one", async () => {
-    writeFileSync(join(dir, 'rig.yaml'), demoRigText([480, 300]));
+    writeFileSync(join(dir, 'rig.yaml'), poorRig(480, 300));
     const p = await skyfold(['plan', 'rig.yaml', '--vary', 'projector.position', '--evaluations', '40', '--rays', '6000', '-o', 'best.yaml', '--json'], { cwd: dir });
     expect(p.code, p.stderr).toBe(0);
     const plan = JSON.parse(p.stdout);

@@ -3,7 +3,11 @@ import { readFileSync, writeFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { describe, expect, it } from 'vitest';
 import { parse } from 'yaml';
-import { demoRigText, skyfold, tempDir } from './support.js';
+import { FIXTURES, skyfold, tempDir } from './support.js';
+import { readFileSync as readText } from 'node:fs';
+
+/** The deliberately poor placement with a small projector: plan has something to improve. */
+const poorRig = (w: number, h: number) => readText(join(FIXTURES, 'poor-placement.yaml'), 'utf8').replace('resolution: [1920, 1200]', `resolution: [${w}, ${h}]`);
 
 const dir = tempDir('plan-room');
 const ROOM = `
@@ -17,7 +21,7 @@ room:   # where things may go
 
 describe('plan in a room', () => {
   it("keeps to the rig file's room and writes the room back with its comments", async () => {
-    writeFileSync(join(dir, 'rig.yaml'), demoRigText([320, 200]) + ROOM);
+    writeFileSync(join(dir, 'rig.yaml'), poorRig(320, 200) + ROOM);
     const r = await skyfold(['plan', 'rig.yaml', '--vary', 'mirror.center', '--vary', 'projector.position', '--evaluations', '60', '--rays', '3000', '-o', 'best.yaml', '--json'], { cwd: dir });
     expect(r.code, r.stderr).toBe(0);
     const p = JSON.parse(r.stdout);

@@ -42,7 +42,7 @@ export { landing } from './analysis/light.js';
 export { EYE_BANDS, describeArc } from './analysis/safety.js';
 export { classifyHit } from './analysis/sample.js';
 export { Sorted } from './analysis/stats.js';
-export { PLAN_DEFAULTS, PLAN_OBJECTIVES, planRig, type PlanCandidate, type PlanObjective, type PlanResult } from './placement/plan.js';
+export { OBJECTIVE_WEIGHTS, PLAN_DEFAULTS, PLAN_MEASURES, PLAN_OBJECTIVES, dominates, planRig, type PlanMeasure, type PlanCandidate, type PlanObjective, type PlanResult } from './placement/plan.js';
 export { EDGE_SHARE, ROOM_DEFAULTS, resolveRoom, type Room } from './placement/room.js';
 
 export { DOME_PATTERN_DEFAULTS, drawDomePattern, type PatternDot } from './pattern/dome-master.js';

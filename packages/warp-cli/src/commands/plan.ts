@@ -83,7 +83,7 @@ function defaultOutput(rigPath: string): string {
 }
 
 function candidateJson(c: PlanCandidate): Record<string, unknown> {
-  return { figures: c.figures, values: c.values, rig: rigToDocument(c.rig) };
+  return { figures: c.figures, values: c.values, bestFor: c.bestFor, rig: rigToDocument(c.rig) };
 }
 
 export function planSummary(p: PlanResult, units: Parameters<typeof formatLength>[1]): string {
@@ -96,14 +96,16 @@ export function planSummary(p: PlanResult, units: Parameters<typeof formatLength
   ].map(({ label, c }) => [
     label,
     pct(c.figures.coverage),
+    pct(c.figures.sharpness),
+    pct(c.figures.uniformity),
+    pct(c.figures.efficiency),
     n(c.figures.median),
-    n(c.figures.p95),
     pct(c.figures.pixelsLit),
     c.figures.focusNear === null ? '-' : `${formatLength(c.figures.focusNear, units, 2)}-${formatLength(c.figures.focusFar!, units, 2)}`,
     n(c.figures.score, 3),
-    names.map((k) => (k.includes('axis') ? `${n(c.values[k], 1)}°` : formatLength(c.values[k], units, 3))).join(', '),
+    c.bestFor.join(', ') || '',
   ]);
-  return table(['', 'coverage', 'arcmin/px', 'p95', 'pixels lit', 'focus depth', 'score', names.join(', ')], rows);
+  return table(['', 'coverage', 'sharpness', 'uniformity', 'efficiency', 'arcmin/px', 'pixels lit', 'focus depth', 'score', 'best for'], rows);
 }
 
 /**
@@ -129,7 +131,7 @@ export function registerPlan(program: Command): void {
     .description('search mirror and projector placements within the dome for the best coverage, sharpness or both')
     .argument('<rig>', 'rig file (YAML or JSON), or a .glb baked by skyfold')
     .option('--vary <field>', `a field to search, repeatable: ${['mirror.center', 'mirror.axis', 'projector.position', 'projector.lookAt'].join(', ')}, or one coordinate such as mirror.center.z (default: ${PLAN_DEFAULTS.vary.join(' and ')})`, collect((s) => s))
-    .addOption(new Option('--objective <name>', 'what to optimize').choices(PLAN_OBJECTIVES as string[]).default(PLAN_DEFAULTS.objective))
+    .addOption(new Option('--objective <name>', 'the weighting of coverage, sharpness, uniformity and efficiency to rank by (README "Planning")').choices(PLAN_OBJECTIVES as string[]).default(PLAN_DEFAULTS.objective))
     .option('--seed <n>', 'seed of the search; the same seed gives the same answer', (s) => parsePositiveInt(s, 'a positive whole number'), PLAN_DEFAULTS.seed)
     .option('--evaluations <n>', 'candidate placements to try (more is slower and surer)', (s) => parsePositiveInt(s), PLAN_DEFAULTS.evaluations)
     .option('--mirror-place <place>', "where the mirror may go: fixed, edge, \"along X,Y,Z X,Y,Z\" (a segment) or \"within X,Y,Z X,Y,Z\" (a box); in the rig's units (default: the rig's room.mirror, else edge)")
@@ -155,7 +157,9 @@ export function registerPlan(program: Command): void {
         throw e;
       }
       const out = opts.output ?? defaultOutput(rigPath);
-      const best = result.best[0];
+      // a candidate is written only when it beats the current rig (or the current rig breaks the room)
+      const beats = (c: PlanCandidate) => !result.current.feasible || (c.figures.score ?? 0) > (result.current.figures.score ?? 0);
+      const best = result.best[0] && beats(result.best[0]) ? result.best[0] : undefined;
       let wrote: string | null = null;
       if (best) {
         writeOutputFile(out, plannedRigText(result, rig, rigDocumentText(rigPath, rig), rigPath));
@@ -173,14 +177,14 @@ export function registerPlan(program: Command): void {
           notes: result.notes.map((n) => wordNotice(n, rig.units)),
           file: wrote,
         });
-        if (!best) setExitCode(1);
+        if (!result.best.length) setExitCode(1);
         return;
       }
       const lines = [planSummary(result, rig.units), ''];
       if (!result.current.feasible) lines.push(`note: the current rig breaks a bound: ${result.current.violations.join('; ')}`);
       for (const n of result.notes) lines.push(`note: ${wordNotice(n, rig.units)}`);
-      lines.push(wrote ? `wrote ${wrote} (candidate #1)` : 'no placement found; nothing written');
+      lines.push(wrote ? `wrote ${wrote} (candidate #1)` : result.best.length ? 'the current rig scores best by the objective; nothing written' : 'no placement found; nothing written');
       writeOut(lines.join('\n') + '\n');
-      if (!best) setExitCode(1);
+      if (!result.best.length) setExitCode(1);
     });
 }

@@ -13,9 +13,9 @@ import { notice, type Notice } from '../notice.js';
 import { roundFigure } from '../analysis/stats.js';
 import { placementFigures, REPORT_DEFAULTS } from '../analysis/analyze.js';
 import { differentialEvolution, type ScoredPoint } from './differential-evolution.js';
-import { betterPlacement, DEFAULT_CLEARANCE, evaluatePlacement, figuresFromReport, NOMINAL_BODY, type Evaluation, type PlanFigures, type PlanObjective, type ScoringSettings } from './scoring.js';
+import { betterPlacement, PLAN_MEASURES, type PlanMeasure, DEFAULT_CLEARANCE, evaluatePlacement, figuresFromReport, NOMINAL_BODY, type Evaluation, type PlanFigures, type PlanObjective, type ScoringSettings } from './scoring.js';
 
-export { NOMINAL_BODY, PLAN_OBJECTIVES, placementViolations, type PlanFigures, type PlanObjective } from './scoring.js';
+export { NOMINAL_BODY, OBJECTIVE_WEIGHTS, PLAN_MEASURES, PLAN_OBJECTIVES, type PlanMeasure, placementViolations, type PlanFigures, type PlanObjective } from './scoring.js';
 
 /** Fields `plan` may vary; a point field may be narrowed to one coordinate (`mirror.center.z`). */
 export const PLAN_FIELDS = ['mirror.center', 'mirror.axis', 'projector.position', 'projector.lookAt'] as const;
@@ -52,7 +52,7 @@ export const PLAN_DEFAULTS: Readonly<PlanOptions> = {
   objective: 'balanced',
   seed: 1,
   evaluations: 800,
-  keep: 3,
+  keep: 4,
   vertices: 2000,
   refineVertices: 12_000,
   reportVertices: REPORT_DEFAULTS.vertices,
@@ -73,6 +73,8 @@ export interface PlanCandidate {
   figures: PlanFigures;
   /** The searched values by field name (metres, degrees for the axis). */
   values: Record<string, number>;
+  /** The measures in which this candidate is the best of those shown (best candidates only). */
+  bestFor: PlanMeasure[];
 }
 
 export interface PlanResult {
@@ -215,18 +217,48 @@ function rigWith(rig: Rig, dims: readonly Dimension[], point: readonly number[])
   return candidate;
 }
 
-/** The best `keep` feasible points, best first, none within 5% of the box's span of a better one. */
-function distinctBest(archive: readonly ScoredPoint<Evaluation>[], dims: readonly Dimension[], keep: number): ScoredPoint<Evaluation>[] {
-  const span = dims.map((d) => d.hi - d.lo);
-  const feasible = archive.filter((entry) => entry.score.violation === 0).sort((a, b) => (b.score.figures.score ?? 0) - (a.score.figures.score ?? 0));
-  const picked: ScoredPoint<Evaluation>[] = [];
-  for (const entry of feasible) {
-    if (picked.length >= keep) break;
-    const distance = (other: ScoredPoint<Evaluation>) => Math.hypot(...other.point.map((value, index) => (value - entry.point[index]) / span[index]));
-    if (picked.some((other) => distance(other) < 0.05)) continue;
-    picked.push(entry);
+/** True when figures a are at least as good as b in all four measures and better in one. */
+export function dominates(a: PlanFigures, b: PlanFigures): boolean {
+  let better = false;
+  for (const m of PLAN_MEASURES) {
+    const x = a[m] ?? 0;
+    const y = b[m] ?? 0;
+    if (x < y) return false;
+    if (x > y) better = true;
   }
+  return better;
+}
+
+/**
+ * Up to `keep` feasible points from the non-dominated set (the Pareto front over coverage, sharpness,
+ * uniformity and efficiency): the objective's best first, then the front's best in each measure, then
+ * by score; none within 5% of the box's span of one already taken, none below `coverageBar`.
+ */
+function frontChoice(archive: readonly ScoredPoint<Evaluation>[], dims: readonly Dimension[], keep: number, coverageBar: number): ScoredPoint<Evaluation>[] {
+  const span = dims.map((d) => d.hi - d.lo || 1);
+  // a trade worth showing keeps most of the dome lit: 90% of the current coverage at least
+  const feasible = archive.filter((entry) => entry.score.violation === 0 && (entry.score.figures.score ?? 0) > 0 && (entry.score.figures.coverage ?? 0) >= coverageBar);
+  const front = feasible.filter((entry) => !feasible.some((other) => dominates(other.score.figures, entry.score.figures)));
+  const byScore = [...front].sort((a, b) => (b.score.figures.score ?? 0) - (a.score.figures.score ?? 0));
+  const picked: ScoredPoint<Evaluation>[] = [];
+  const take = (entry: ScoredPoint<Evaluation> | undefined) => {
+    if (!entry || picked.length >= keep) return;
+    const distance = (other: ScoredPoint<Evaluation>) => Math.hypot(...other.point.map((value, index) => (value - entry.point[index]) / span[index]));
+    if (!picked.some((other) => distance(other) < 0.05)) picked.push(entry);
+  };
+  take(byScore[0]);
+  for (const m of PLAN_MEASURES) take([...byScore].sort((a, b) => (b.score.figures[m] ?? 0) - (a.score.figures[m] ?? 0))[0]);
+  for (const entry of byScore) take(entry);
   return picked;
+}
+
+/** For each candidate, the measures in which it is the best of the candidates shown. */
+function leaders(candidates: readonly PlanCandidate[]): void {
+  for (const m of PLAN_MEASURES) {
+    let top: PlanCandidate | undefined;
+    for (const c of candidates) if ((c.figures[m] ?? -1) > (top?.figures[m] ?? -1)) top = c;
+    top?.bestFor.push(m);
+  }
 }
 
 export function planRig(rig: Rig, options: Partial<PlanOptions> = {}): PlanResult {
@@ -236,7 +268,7 @@ export function planRig(rig: Rig, options: Partial<PlanOptions> = {}): PlanResul
     const text = 'projector.body is not given: a {length:width} × {length:length} × {length:height} body is assumed to keep the projector out of the reflected light';
     notes.push(notice('plan.body-assumed', text, { parameter: 'projector.body', lengths: { ...NOMINAL_BODY } }));
   }
-  const room = resolveRoom(rig, { ...(options.maxShadow !== undefined ? { maxShadow: options.maxShadow } : {}), ...settings.room }, notes);
+  const room = resolveRoom(rig, { ...(options.maxShadow !== undefined ? { maxShadow: options.maxShadow } : {}), ...settings.room }, notes, NOMINAL_BODY);
   const dims = dimensions(rig, settings.vary, room, notes);
   const coarse: ScoringSettings = { objective: settings.objective, vertices: settings.vertices, depth: 2, clearance: settings.clearance, maxShadow: room.maxShadow, minCoverage: 0, room };
   const fine: ScoringSettings = { ...coarse, vertices: Math.max(settings.vertices, settings.refineVertices), depth: 3 };
@@ -265,24 +297,28 @@ export function planRig(rig: Rig, options: Partial<PlanOptions> = {}): PlanResul
   // the table's figures are report's own (the same trace at the same density), the bounds checked finely
   const reported = (candidate: Rig, check: Evaluation) =>
     figuresFromReport(placementFigures(candidate, { vertices: settings.reportVertices }), settings.objective, check.figures.bodyShadow);
-  const best = distinctBest(search.archive, dims, settings.keep)
+  const best = frontChoice(search.archive, dims, settings.keep, minCoverage)
     .map((entry) => {
       const candidate = rigWith(rig, dims, entry.point);
       const check = evaluatePlacement(candidate, { ...fine, minCoverage });
       step();
-      return { rig: candidate, figures: reported(candidate, check), values: values(entry.point), check };
+      return { rig: candidate, figures: reported(candidate, check), values: values(entry.point), bestFor: [] as PlanMeasure[], check };
     })
     // the lit share as report counts it, too: the table never shows a candidate below room.leastLit
     .filter((c) => c.check.violation === 0 && (c.figures.pixelsLit ?? 0) >= room.leastLit)
     .map(({ check: _check, ...c }) => c)
     .sort((a, b) => (b.figures.score ?? 0) - (a.figures.score ?? 0));
+  leaders(best);
   const currentCheck = evaluatePlacement(rig, fine);
   const current = { ...currentCheck, figures: reported(rig, currentCheck) };
+  if (best.length && currentCheck.violation === 0 && (best[0].figures.score ?? 0) <= (current.figures.score ?? 0)) {
+    notes.push(notice('plan.no-better', 'no placement found scores better than the current one by the objective: the current rig may stay as it is'));
+  }
   settings.onProgress?.(total, total);
   if (best.length === 0) notes.push(notice('plan.nothing-lit', 'no placement within the bounds lights the content; widen the search ({option:vary}) or check the rig'));
   const bounds = Object.fromEntries(dims.map((d) => [d.name, [roundFigure(d.lo, 4)!, roundFigure(d.hi, 4)!] as [number, number]]));
   return {
-    current: { rig, figures: current.figures, values: values(start), feasible: current.violation === 0, violations: current.reasons },
+    current: { rig, figures: current.figures, values: values(start), bestFor: [], feasible: current.violation === 0, violations: current.reasons },
     best,
     evaluations: search.evaluations,
     objective: settings.objective,

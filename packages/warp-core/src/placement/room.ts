@@ -5,7 +5,7 @@
  * section, options and defaults merge here; `roomViolations` says by how much a placement breaks them.
  */
 import type { Vec3 } from '../math.js';
-import type { AudienceZone, EyeBandName, MirrorPlace, Rig, RoomModel } from '../rig/model.js';
+import type { AudienceZone, EyeBandName, MirrorPlace, ProjectorBody, Rig, RoomModel } from '../rig/model.js';
 import { projectorFrame } from '../optics/projector.js';
 import { bodyCorners } from '../analysis/body.js';
 import { EYE_BANDS } from '../analysis/safety.js';
@@ -43,7 +43,7 @@ export interface Room {
 }
 
 /** The rig's own `room`, overridden field by field by `options`, the rest from ROOM_DEFAULTS (each named in a note). */
-export function resolveRoom(rig: Rig, options: RoomModel | undefined, notes: Notice[]): Room {
+export function resolveRoom(rig: Rig, options: RoomModel | undefined, notes: Notice[], assumedBody?: ProjectorBody): Room {
   const given: RoomModel = { ...rig.room, ...stripUndefined(options ?? {}) };
   const floorZ = rig.dome.floor !== undefined ? -rig.dome.floor : -0.5 * rig.dome.radius;
   const assumed: string[] = [];
@@ -57,7 +57,7 @@ export function resolveRoom(rig: Rig, options: RoomModel | undefined, notes: Not
   let audienceRadius = ROOM_DEFAULTS.audienceShare * rig.dome.radius;
   if (given.audience === undefined) {
     // no nearer the centre than the projector stands now: the current rig keeps its own floor
-    audienceRadius = Math.min(audienceRadius, Math.max(0, distanceToFootprint(0, 0, footprint(rig)) - 0.1)); // twice the clearance, so the current stand keeps it
+    audienceRadius = Math.min(audienceRadius, Math.max(0, distanceToFootprint(0, 0, footprint(rig, assumedBody)) - 0.1)); // twice the clearance, so the current stand keeps it
     assumed.push('the audience sits within {length:audience} of the dome centre (room.audience)');
     lengths.audience = audienceRadius;
   }
@@ -106,9 +106,9 @@ export function distanceToFootprint(px: number, py: number, points: readonly (re
 }
 
 /** The projector's corners (its body's, or the lens alone), for its footprint on the floor. */
-function footprint(rig: Rig): number[][] {
+function footprint(rig: Rig, assumedBody?: ProjectorBody): number[][] {
   try {
-    return bodyCorners(rig.projector.body ?? { width: 0, length: 0, height: 0 }, projectorFrame(rig.projector));
+    return bodyCorners(rig.projector.body ?? assumedBody ?? { width: 0, length: 0, height: 0 }, projectorFrame(rig.projector));
   } catch {
     return [rig.projector.position]; // a degenerate aim is placementViolations' business
   }

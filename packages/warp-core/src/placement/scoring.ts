@@ -12,12 +12,34 @@ import { contentSolidAngle, coverageShare } from '../analysis/coverage.js';
 import type { PlacementFigures } from '../analysis/analyze.js';
 import { ARCMIN_PER_RADIAN, cellArcmin } from '../analysis/resolution.js';
 import { cellMeasures, sampleFrame, type FrameSample } from '../analysis/sample.js';
+import { brightnessFigures } from '../analysis/brightness.js';
+import { pixelFigures } from '../analysis/spill.js';
 import { roundFigure, Sorted } from '../analysis/stats.js';
 import type { ProjectorFrame } from '../optics/projector.js';
 import { roomLightViolations, roomPlaceViolations, type Room } from './room.js';
 
-export type PlanObjective = 'coverage' | 'sharpness' | 'balanced';
-export const PLAN_OBJECTIVES: readonly PlanObjective[] = ['coverage', 'sharpness', 'balanced'];
+export type PlanObjective = 'coverage' | 'sharpness' | 'uniformity' | 'efficiency' | 'balanced';
+export const PLAN_OBJECTIVES: readonly PlanObjective[] = ['coverage', 'sharpness', 'uniformity', 'efficiency', 'balanced'];
+
+/** The four figures a placement is judged by, each a share from 0 (worst) to 1 (best). */
+export const PLAN_MEASURES = ['coverage', 'sharpness', 'uniformity', 'efficiency'] as const;
+export type PlanMeasure = (typeof PLAN_MEASURES)[number];
+
+/**
+ * Each objective's weights: the score is the weighted geometric mean Π fᵢ^wᵢ of the four figures
+ * (weights summing to 1), so no figure can be traded to zero. A single-figure objective keeps a
+ * hundredth on each other figure to break its ties (many placements light all of the dome).
+ * `balanced` puts coverage first, sharpness second and the light third, and leaves uniformity out:
+ * the warp mesh evens the brightness, at a cost in light that efficiency already counts (the planner's
+ * own choice; README "Planning").
+ */
+export const OBJECTIVE_WEIGHTS: Readonly<Record<PlanObjective, Readonly<Record<PlanMeasure, number>>>> = {
+  coverage: { coverage: 0.97, sharpness: 0.01, uniformity: 0.01, efficiency: 0.01 },
+  sharpness: { coverage: 0.01, sharpness: 0.97, uniformity: 0.01, efficiency: 0.01 },
+  uniformity: { coverage: 0.01, sharpness: 0.01, uniformity: 0.97, efficiency: 0.01 },
+  efficiency: { coverage: 0.01, sharpness: 0.01, uniformity: 0.01, efficiency: 0.97 },
+  balanced: { coverage: 0.7, sharpness: 0.2, uniformity: 0, efficiency: 0.1 },
+};
 
 /** Clearance between the projector's lens and the floor, and between parts, metres (common practice). */
 export const DEFAULT_CLEARANCE = 0.05;
@@ -40,6 +62,12 @@ export interface PlanFigures {
   focusNear: number | null;
   focusFar: number | null;
   bodyShadow: number | null;
+  /** The ideal arcminutes per pixel over the 95th-percentile one, at most 1. */
+  sharpness: number | null;
+  /** Dimmest over brightest lit patch before compensation (1 over report's brightness ratio). */
+  uniformity: number | null;
+  /** Share of the projector's light that reaches the content after compensation: pixels lit × (1 − light lost). */
+  efficiency: number | null;
   score: number | null;
 }
 
@@ -103,7 +131,7 @@ export function placementViolations(rig: Rig, clearance = DEFAULT_CLEARANCE): { 
   return { total, reasons: [...new Set(reasons)] };
 }
 
-const NO_FIGURES: PlanFigures = { coverage: null, median: null, p95: null, pixelsLit: null, focusNear: null, focusFar: null, bodyShadow: null, score: null };
+const NO_FIGURES: PlanFigures = { coverage: null, median: null, p95: null, pixelsLit: null, focusNear: null, focusFar: null, bodyShadow: null, sharpness: null, uniformity: null, efficiency: null, score: null };
 
 /** Nearest and farthest lit mirror point along the lens axis, and how many samples are lit. */
 function focusDepths(samples: FrameSample, frame: ProjectorFrame): { near: number; far: number; lit: number } {
@@ -122,12 +150,28 @@ function focusDepths(samples: FrameSample, frame: ProjectorFrame): { near: numbe
   return { near, far, lit };
 }
 
-/** The objective's score from coverage and the 95th-percentile cell size against the ideal one. */
-function objectiveScore(objective: PlanObjective, coverage: number, idealArcmin: number, p95: number): number {
-  if (!(coverage > 0) || !Number.isFinite(p95)) return 0;
-  if (objective === 'coverage') return coverage + 1e-3 * Math.min(1, idealArcmin / p95);
-  if (objective === 'sharpness') return idealArcmin / p95;
-  return coverage * Math.sqrt(Math.min(1, idealArcmin / p95));
+/** The four figures from report-style ones; null where a figure is unknown. */
+function measures(coverage: number, idealArcmin: number, p95: number, ratioBefore: number | null, pixelsLit: number, lightLost: number | null): Pick<PlanFigures, PlanMeasure> {
+  const share = (x: number) => (Number.isFinite(x) ? Math.max(0, Math.min(1, x)) : null);
+  return {
+    coverage: share(coverage),
+    sharpness: share(idealArcmin / p95),
+    uniformity: ratioBefore !== null && ratioBefore > 0 ? share(1 / ratioBefore) : null,
+    efficiency: lightLost !== null ? share(pixelsLit * (1 - lightLost)) : null,
+  };
+}
+
+/** The objective's weighted geometric mean of the four figures (OBJECTIVE_WEIGHTS); 0 when any is unknown or 0. */
+export function objectiveScore(objective: PlanObjective, f: Pick<PlanFigures, PlanMeasure>): number {
+  let log = 0;
+  for (const m of PLAN_MEASURES) {
+    const w = OBJECTIVE_WEIGHTS[objective][m];
+    if (w === 0) continue;
+    const v = f[m];
+    if (v === null || !(v > 0)) return 0;
+    log += w * Math.log(v);
+  }
+  return Math.exp(log);
 }
 
 /** Scores one placement; a rig without a body gets NOMINAL_BODY. */
@@ -150,7 +194,10 @@ export function evaluatePlacement(given: Rig, settings: ScoringSettings): Evalua
   const [width, height] = rig.projector.resolution;
   const idealArcmin = Math.sqrt(contentAngle / (width * height)) * ARCMIN_PER_RADIAN;
   const p95 = arcmin.q(0.95);
-  const score = objectiveScore(objective, coverage, idealArcmin, p95);
+  const brightness = brightnessFigures(cells);
+  const litShare = pixelFigures(samples).lit ?? 0;
+  const four = measures(coverage, idealArcmin, p95, brightness.ratioBefore, litShare, brightness.lightLost);
+  const score = objectiveScore(objective, four);
   const reasons: string[] = [];
   let violation = 0;
   if (rig.projector.body && shadow > maxShadow) {
@@ -176,13 +223,13 @@ export function evaluatePlacement(given: Rig, settings: ScoringSettings): Evalua
   }
   return {
     figures: {
-      coverage: roundFigure(coverage),
       median: roundFigure(arcmin.q(0.5), 3),
       p95: roundFigure(p95, 3),
-      pixelsLit: roundFigure(lit / samples.kind.length),
+      pixelsLit: roundFigure(litShare),
       focusNear: roundFigure(near, 4),
       focusFar: roundFigure(far, 4),
       bodyShadow: roundFigure(shadow),
+      ...roundMeasures(four),
       score: roundFigure(score, 5),
     },
     violation,
@@ -199,16 +246,22 @@ export function evaluatePlacement(given: Rig, settings: ScoringSettings): Evalua
 export function figuresFromReport(f: PlacementFigures, objective: PlanObjective, bodyShadow: number | null): PlanFigures {
   const coverage = f.coverage.fraction;
   const { median, p95, ideal } = f.resolution;
+  const four = measures(coverage ?? 0, ideal, p95 ?? Number.NaN, f.brightness.ratioBefore, f.pixels.lit ?? 0, f.brightness.lightLost);
   return {
-    coverage,
     median,
     p95,
     pixelsLit: f.pixels.lit,
     focusNear: f.focus.depth.near,
     focusFar: f.focus.depth.far,
     bodyShadow: f.coverage.bodyShadow ?? bodyShadow,
-    score: roundFigure(objectiveScore(objective, coverage ?? 0, ideal, p95 ?? Number.NaN), 5),
+    ...roundMeasures(four),
+    coverage, // report's own figure
+    score: roundFigure(objectiveScore(objective, four), 5),
   };
+}
+
+function roundMeasures(f: Pick<PlanFigures, PlanMeasure>): Pick<PlanFigures, PlanMeasure> {
+  return { coverage: f.coverage === null ? null : roundFigure(f.coverage), sharpness: f.sharpness === null ? null : roundFigure(f.sharpness), uniformity: f.uniformity === null ? null : roundFigure(f.uniformity), efficiency: f.efficiency === null ? null : roundFigure(f.efficiency) };
 }
 
 /** Deb's comparison: true when a is better than b. */
