@@ -43,7 +43,8 @@ export { EYE_BANDS, describeArc } from './analysis/safety.js';
 export { classifyHit } from './analysis/sample.js';
 export { Sorted } from './analysis/stats.js';
 export { OBJECTIVE_WEIGHTS, PLAN_DEFAULTS, PLAN_MEASURES, PLAN_OBJECTIVES, dominates, planRig, type PlanMeasure, type PlanCandidate, type PlanObjective, type PlanResult } from './placement/plan.js';
-export { EDGE_SHARE, ROOM_DEFAULTS, resolveRoom, type Room } from './placement/room.js';
+export { describeMoves, MOVE_RESOLUTION, type MoveStep } from './placement/moves.js';
+export { EDGE_SHARE, OPEN_ROOM, ROOM_DEFAULTS, resolveRoom, type Room } from './placement/room.js';
 
 export { DOME_PATTERN_DEFAULTS, drawDomePattern, type PatternDot } from './pattern/dome-master.js';
 export { drawMarkerFrame, type Marker } from './pattern/markers.js';

@@ -2,7 +2,7 @@
 import { basename, dirname, extname, join } from 'node:path';
 import { Option, type Command } from 'commander';
 import { parseDocument } from 'yaml';
-import { formatLength, parseLengthString, toMetres, type LengthUnit, type RoomModel, PLAN_DEFAULTS, PLAN_OBJECTIVES, planRig, RigError, rigToDocument, type PlanCandidate, type PlanObjective, type PlanResult, type Rig } from '@skyfold/warp-core';
+import { formatLength, parseLengthString, type MoveStep, toMetres, type LengthUnit, type RoomModel, PLAN_DEFAULTS, PLAN_OBJECTIVES, planRig, RigError, rigToDocument, type PlanCandidate, type PlanObjective, type PlanResult, type Rig } from '@skyfold/warp-core';
 import { readRig } from '../io/document-file.js';
 import { editRigDocument, keepCommentColumns, rigDocumentText } from '../io/rig-edit.js';
 import { writeOutputFile } from '../io/output-file.js';
@@ -77,13 +77,33 @@ export function roomOptions(opts: PlanCliOptions, units: LengthUnit): RoomModel 
   return room;
 }
 
+/** A short length for a move: centimetres in a metric rig, inches in one in feet, else the rig's unit. */
+function moveLength(metres: number, units: LengthUnit): string {
+  if (units === 'm' || units === 'cm') return `${Number((metres * 100).toFixed(metres < 0.1 ? 1 : 0))} cm`;
+  if (units === 'ft' || units === 'in') return `${Number((metres / 0.0254).toFixed(1))} in`;
+  return formatLength(metres, units, 0);
+}
+
+/** The moves in the room's words: "projector 14 cm toward the mirror and 5 cm lower; aim 2° up". */
+export function wordMoves(moves: readonly MoveStep[], units: LengthUnit): string {
+  if (!moves.length) return 'no move';
+  const parts: string[] = [];
+  for (const part of ['projector', 'aim', 'mirror', 'mirror tilt'] as const) {
+    const steps = moves.filter((m) => m.part === part).map((m) => `${m.metres !== undefined ? moveLength(m.metres, units) : `${Math.round(m.degrees!)}°`} ${m.direction}`);
+    if (!steps.length) continue;
+    const joined = steps.length === 1 ? steps[0] : `${steps.slice(0, -1).join(', ')} and ${steps[steps.length - 1]}`;
+    parts.push(`${part} ${joined}`);
+  }
+  return parts.join('; ');
+}
+
 function defaultOutput(rigPath: string): string {
   const ext = extname(rigPath);
   return join(dirname(rigPath), `${basename(rigPath, ext)}.planned.yaml`);
 }
 
 function candidateJson(c: PlanCandidate): Record<string, unknown> {
-  return { figures: c.figures, values: c.values, bestFor: c.bestFor, rig: rigToDocument(c.rig) };
+  return { figures: c.figures, values: c.values, bestFor: c.bestFor, moves: c.moves, rig: rigToDocument(c.rig) };
 }
 
 export function planSummary(p: PlanResult, units: Parameters<typeof formatLength>[1]): string {
@@ -173,14 +193,14 @@ export function registerPlan(program: Command): void {
           vary: result.vary,
           bounds: result.bounds,
           current: { ...candidateJson(result.current), feasible: result.current.feasible, violations: result.current.violations },
-          best: result.best.map(candidateJson),
+          best: result.best.map((c) => ({ ...candidateJson(c), movesText: wordMoves(c.moves, rig.units) })),
           notes: result.notes.map((n) => wordNotice(n, rig.units)),
           file: wrote,
         });
         if (!result.best.length) setExitCode(1);
         return;
       }
-      const lines = [planSummary(result, rig.units), ''];
+      const lines = [planSummary(result, rig.units), '', ...result.best.map((c, i) => `#${i + 1}: ${wordMoves(c.moves, rig.units)}`), ''];
       if (!result.current.feasible) lines.push(`note: the current rig breaks a bound: ${result.current.violations.join('; ')}`);
       for (const n of result.notes) lines.push(`note: ${wordNotice(n, rig.units)}`);
       lines.push(wrote ? `wrote ${wrote} (candidate #1)` : result.best.length ? 'the current rig scores best by the objective; nothing written' : 'no placement found; nothing written');

@@ -9,6 +9,7 @@ import { DEG, normalize, RAD, type Vec3 } from '../math.js';
 import { cloneRig } from '../rig/clone.js';
 import { OptionError, type Rig, type RoomModel } from '../rig/model.js';
 import { resolveRoom, type Room } from './room.js';
+import { describeMoves, type MoveStep } from './moves.js';
 import { notice, type Notice } from '../notice.js';
 import { roundFigure } from '../analysis/stats.js';
 import { placementFigures, REPORT_DEFAULTS } from '../analysis/analyze.js';
@@ -75,6 +76,8 @@ export interface PlanCandidate {
   values: Record<string, number>;
   /** The measures in which this candidate is the best of those shown (best candidates only). */
   bestFor: PlanMeasure[];
+  /** The moves from the current rig to this one, in the room's words. */
+  moves: MoveStep[];
 }
 
 export interface PlanResult {
@@ -302,7 +305,7 @@ export function planRig(rig: Rig, options: Partial<PlanOptions> = {}): PlanResul
       const candidate = rigWith(rig, dims, entry.point);
       const check = evaluatePlacement(candidate, { ...fine, minCoverage });
       step();
-      return { rig: candidate, figures: reported(candidate, check), values: values(entry.point), bestFor: [] as PlanMeasure[], check };
+      return { rig: candidate, figures: reported(candidate, check), values: values(entry.point), bestFor: [] as PlanMeasure[], moves: describeMoves(rig, candidate), check };
     })
     // the lit share as report counts it, too: the table never shows a candidate below room.leastLit
     .filter((c) => c.check.violation === 0 && (c.figures.pixelsLit ?? 0) >= room.leastLit)
@@ -318,7 +321,7 @@ export function planRig(rig: Rig, options: Partial<PlanOptions> = {}): PlanResul
   if (best.length === 0) notes.push(notice('plan.nothing-lit', 'no placement within the bounds lights the content; widen the search ({option:vary}) or check the rig'));
   const bounds = Object.fromEntries(dims.map((d) => [d.name, [roundFigure(d.lo, 4)!, roundFigure(d.hi, 4)!] as [number, number]]));
   return {
-    current: { rig, figures: current.figures, values: values(start), bestFor: [], feasible: current.violation === 0, violations: current.reasons },
+    current: { rig, figures: current.figures, values: values(start), bestFor: [], moves: [], feasible: current.violation === 0, violations: current.reasons },
     best,
     evaluations: search.evaluations,
     objective: settings.objective,
