@@ -53,7 +53,7 @@ export const PLAN_DEFAULTS: Readonly<PlanOptions> = {
   objective: 'balanced',
   seed: 1,
   evaluations: 800,
-  keep: 4,
+  keep: 3,
   vertices: 2000,
   refineVertices: 12_000,
   reportVertices: REPORT_DEFAULTS.vertices,
