@@ -8,7 +8,7 @@ import { azAltFromDirection, type Vec3 } from './math.js';
 import { capCosine, mirrorNormal, onCap, raySphereFirstHit, reflect } from './optics/mirror.js';
 import { pixelToRay, projectorFrame, type ProjectorFrame } from './optics/projector.js';
 import type { Rig } from './rig/model.js';
-import type { TriangleBvh } from './optics/triangle-bvh.js';
+import { rayTriangle, type TriangleBvh } from './optics/triangle-bvh.js';
 
 /**
  * What a projector pixel's light does. Numeric codes are used in typed arrays. The trace gives the first
@@ -157,6 +157,7 @@ export class Tracer {
     const tri = bvh?.triangles ?? new Float64Array(0);
     let hint = -1;
     let hintOpen = false;
+    const hintUv = new Float64Array(2);
     const [ex, ey, ez] = content.eye;
     const invFov = 1 / content.fov;
     const { u, v, kind, point, mirrorDistance } = out;
@@ -206,35 +207,12 @@ export class Tracer {
           const sb = Xx * rx + Xy * ry + Xz * rz;
           s = -sb + Math.sqrt(sb * sb - (Xx * Xx + Xy * Xy + Xz * Xz - R2));
         } else {
-          // from inside a convex mesh the last pixel's triangle usually answers: tested here, inline
+          // from inside a convex mesh the last pixel's triangle usually answers: tested first, before the BVH
           s = -1;
           let open = false;
           if (anyHit && hint >= 0) {
-            const q = 9 * hint;
-            const e1x = tri[q + 3], e1y = tri[q + 4], e1z = tri[q + 5];
-            const e2x = tri[q + 6], e2y = tri[q + 7], e2z = tri[q + 8];
-            const hx = ry * e2z - rz * e2y;
-            const hy = rz * e2x - rx * e2z;
-            const hz = rx * e2y - ry * e2x;
-            const det = e1x * hx + e1y * hy + e1z * hz;
-            if (det !== 0) {
-              const inv = 1 / det;
-              const sx = Xx - tri[q], sy = Xy - tri[q + 1], sz = Xz - tri[q + 2];
-              const bu = (sx * hx + sy * hy + sz * hz) * inv;
-              if (bu >= 0 && bu <= 1) {
-                const qx = sy * e1z - sz * e1y;
-                const qy = sz * e1x - sx * e1z;
-                const qz = sx * e1y - sy * e1x;
-                const bv = (rx * qx + ry * qy + rz * qz) * inv;
-                if (bv >= 0 && bu + bv <= 1) {
-                  const th = (e2x * qx + e2y * qy + e2z * qz) * inv;
-                  if (th > 1e-9) {
-                    s = th;
-                    open = hintOpen;
-                  }
-                }
-              }
-            }
+            s = rayTriangle(tri, 9 * hint, Xx, Xy, Xz, rx, ry, rz, 1e-9, Infinity, 0, hintUv);
+            if (s >= 0) open = hintOpen;
           }
           if (s < 0) {
             s = bvh.firstHit(Xx, Xy, Xz, rx, ry, rz, 1e-9, Infinity, anyHit);

@@ -17,6 +17,35 @@ const EDGE = 1e-12;
 const COST_NODE = 1;
 const COST_TRIANGLE = 1;
 
+/**
+ * The ray/triangle test (Möller & Trumbore 1997) for ray o + t·d against the triangle stored at offset k
+ * of `tri` as (v0, e1, e2): its t in (tMin, tMax), or −1 for a miss or a ray parallel to its plane.
+ * Barycentrics (u, v) of a hit go to `uv`; `edge` is the slack allowed outside [0, 1]. Either face counts.
+ */
+export function rayTriangle(tri: Float64Array, k: number, ox: number, oy: number, oz: number, dx: number, dy: number, dz: number, tMin: number, tMax: number, edge: number, uv: Float64Array): number {
+  const e1x = tri[k + 3], e1y = tri[k + 4], e1z = tri[k + 5];
+  const e2x = tri[k + 6], e2y = tri[k + 7], e2z = tri[k + 8];
+  const px = dy * e2z - dz * e2y;
+  const py = dz * e2x - dx * e2z;
+  const pz = dx * e2y - dy * e2x;
+  const det = e1x * px + e1y * py + e1z * pz;
+  if (det === 0) return -1;
+  const inv = 1 / det;
+  const sx = ox - tri[k], sy = oy - tri[k + 1], sz = oz - tri[k + 2];
+  const u = (sx * px + sy * py + sz * pz) * inv;
+  if (!(u >= -edge && u <= 1 + edge)) return -1;
+  const qx = sy * e1z - sz * e1y;
+  const qy = sz * e1x - sx * e1z;
+  const qz = sx * e1y - sy * e1x;
+  const v = (dx * qx + dy * qy + dz * qz) * inv;
+  if (!(v >= -edge && u + v <= 1 + edge)) return -1;
+  const t = (e2x * qx + e2y * qy + e2z * qz) * inv;
+  if (!(t > tMin && t < tMax)) return -1;
+  uv[0] = u;
+  uv[1] = v;
+  return t;
+}
+
 export class TriangleBvh {
   /** Per node: min x, y, z, max x, y, z. */
   readonly bounds: Float64Array;
@@ -41,8 +70,8 @@ export class TriangleBvh {
   private planeSide: Int8Array | null | undefined;
   /** Edge neighbours per leaf slot, for convex meshes (see `edgeNeighbours`). */
   private neighbours: Int32Array | undefined;
-  private slotU = 0;
-  private slotV = 0;
+  /** Barycentrics (u, v) of the last `slotHit`. */
+  private readonly slotUv = new Float64Array(2);
 
   /**
    * Builds over the triangles (i0, i1, i2) = indices[3k..3k+2] of the xyz `positions`. Indices must be
@@ -252,6 +281,7 @@ export class TriangleBvh {
     const tri = this.triangles;
     const stack = this.stack;
     const stackT = this.stackT;
+    const uv = this.slotUv;
     let best = tMax;
     let hit = -1;
     let hu = 0;
@@ -263,8 +293,8 @@ export class TriangleBvh {
       if (t >= 0) {
         best = t;
         hit = hint;
-        hu = this.slotU;
-        hv = this.slotV;
+        hu = this.slotUv[0];
+        hv = this.slotUv[1];
         if (anyHit) return this.finish(hit, hu, hv, best);
       } else if (anyHit && this.neighbours !== undefined) {
         const nb = this.neighbours;
@@ -272,7 +302,7 @@ export class TriangleBvh {
           const s = nb[e];
           if (s < 0) continue;
           const t2 = this.slotHit(s, ox, oy, oz, dx, dy, dz, tMin, best);
-          if (t2 >= 0) return this.finish(s, this.slotU, this.slotV, t2);
+          if (t2 >= 0) return this.finish(s, this.slotUv[0], this.slotUv[1], t2);
         }
       }
     }
@@ -310,29 +340,12 @@ export class TriangleBvh {
         const end = first + w;
         for (let s = first; s < end; s++) {
           if (s === hint) continue;
-          const k = 9 * s;
-          const e1x = tri[k + 3], e1y = tri[k + 4], e1z = tri[k + 5];
-          const e2x = tri[k + 6], e2y = tri[k + 7], e2z = tri[k + 8];
-          const px = dy * e2z - dz * e2y;
-          const py = dz * e2x - dx * e2z;
-          const pz = dx * e2y - dy * e2x;
-          const det = e1x * px + e1y * py + e1z * pz;
-          if (det === 0) continue; // the ray is parallel to the triangle's plane
-          const inv = 1 / det;
-          const sx = ox - tri[k], sy = oy - tri[k + 1], sz = oz - tri[k + 2];
-          const u = (sx * px + sy * py + sz * pz) * inv;
-          if (u < -EDGE || u > 1 + EDGE) continue;
-          const qx = sy * e1z - sz * e1y;
-          const qy = sz * e1x - sx * e1z;
-          const qz = sx * e1y - sy * e1x;
-          const v = (dx * qx + dy * qy + dz * qz) * inv;
-          if (v < -EDGE || u + v > 1 + EDGE) continue;
-          const t = (e2x * qx + e2y * qy + e2z * qz) * inv;
-          if (t > tMin && t < best) {
+          const t = rayTriangle(tri, 9 * s, ox, oy, oz, dx, dy, dz, tMin, best, EDGE, uv);
+          if (t >= 0) {
             best = t;
             hit = s;
-            hu = u;
-            hv = v;
+            hu = uv[0];
+            hv = uv[1];
           }
         }
         if (anyHit && hit >= 0) break;
@@ -481,31 +494,9 @@ export class TriangleBvh {
     return false;
   }
 
-  /** Möller–Trumbore on the triangle in leaf slot s: its t in (tMin, tMax), or −1; barycentrics in slotU, slotV. */
+  /** The ray/triangle test on the triangle in leaf slot s: its t in (tMin, tMax), or −1; barycentrics in slotUv. */
   private slotHit(s: number, ox: number, oy: number, oz: number, dx: number, dy: number, dz: number, tMin: number, tMax: number): number {
-    const tri = this.triangles;
-    const k = 9 * s;
-    const e1x = tri[k + 3], e1y = tri[k + 4], e1z = tri[k + 5];
-    const e2x = tri[k + 6], e2y = tri[k + 7], e2z = tri[k + 8];
-    const px = dy * e2z - dz * e2y;
-    const py = dz * e2x - dx * e2z;
-    const pz = dx * e2y - dy * e2x;
-    const det = e1x * px + e1y * py + e1z * pz;
-    if (det === 0) return -1;
-    const inv = 1 / det;
-    const sx = ox - tri[k], sy = oy - tri[k + 1], sz = oz - tri[k + 2];
-    const u = (sx * px + sy * py + sz * pz) * inv;
-    if (u < -EDGE || u > 1 + EDGE) return -1;
-    const qx = sy * e1z - sz * e1y;
-    const qy = sz * e1x - sx * e1z;
-    const qz = sx * e1y - sy * e1x;
-    const v = (dx * qx + dy * qy + dz * qz) * inv;
-    if (v < -EDGE || u + v > 1 + EDGE) return -1;
-    const t = (e2x * qx + e2y * qy + e2z * qz) * inv;
-    if (!(t > tMin && t < tMax)) return -1;
-    this.slotU = u;
-    this.slotV = v;
-    return t;
+    return rayTriangle(this.triangles, 9 * s, ox, oy, oz, dx, dy, dz, tMin, tMax, EDGE, this.slotUv);
   }
 
   /** Per leaf slot, the slots across its three edges (−1 where none): triangles sharing two corners. */
