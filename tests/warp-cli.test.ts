@@ -10,7 +10,7 @@ import { crc32, deflateSync } from 'node:zlib';
 import sharp from 'sharp';
 import { beforeAll, describe, expect, it } from 'vitest';
 import { BAKE_DEFAULTS, REMAP_DEFAULTS, createImageLike, pixelMapFromRig, remap, smoothCard, starField, type ImageBuffer, type RemapMap } from '@skyfold/warp-core';
-import { loadRig } from '@skyfold/warp-cli';
+import { loadRig, type BatchSummary } from '@skyfold/warp-cli';
 import { BIN, ROOT, collect, demoRigText, skyfold as runSkyfold, spawnSkyfold, tempDir, whileRunning, type Run } from './support.js';
 
 const MANIFEST = '.skyfold-warp.jsonl';
@@ -18,24 +18,14 @@ const PROJ: [number, number] = [480, 300];
 /** Tests of the spawned binary on a busy shared machine: a generous limit for the whole test, not a speed check. */
 const SPAWNED_TIMEOUT = 300_000;
 
-interface Summary {
-  done: number;
-  skipped: number;
-  failed: number;
-  failures: { input: string; reason: string }[];
-  total: number;
-  output: string;
-  seconds: number;
-}
-
 /** skyfold in-process, in `cwd`, with `input` on standard input. */
 function skyfold(args: string[], cwd: string, input?: Buffer): Promise<Run> {
   return runSkyfold(args, { cwd, input });
 }
 
-function summaryOf(r: Run): Summary {
+function summaryOf(r: Run): BatchSummary {
   try {
-    return JSON.parse(r.stdout.toString()) as Summary;
+    return JSON.parse(r.stdout.toString()) as BatchSummary;
   } catch {
     throw new Error(`no JSON summary (exit ${r.code}); stderr: ${r.stderr}`);
   }

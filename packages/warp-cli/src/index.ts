@@ -4,5 +4,6 @@ export { loadRig, parseDocumentText, type LoadedRig } from './io/document-file.j
 export { decodeMesh, encodeMesh, formatFromPath, MESH_FORMATS, type MeshFormat } from './export/index.js';
 export { readGlb, writeGlb } from './export/glb.js';
 export { DEMO_RIG, starterRigText } from './demo-rig.js';
+export type { BatchSummary } from './warp/summary.js';
 export { findVideoTools, tryVideoTools, type VideoTools } from './video/tools.js';
 export { firstOffGrid, probeVideo, type VideoInfo } from './video/probe.js';
