@@ -2,6 +2,18 @@
  * Fixed-size raw frames over pipes: read each frame straight into a buffer the caller owns (no
  * growing concatenation), and write with back-pressure without piling up listeners.
  */
+import type { ImageBuffer } from '@skyfold/warp-core';
+
+/**
+ * A zeroed RGB frame, width × height at 1 or 2 bytes a sample: the bytes a pipe reads into or writes
+ * from, and the image over those same bytes (16-bit samples read in place: little-endian hosts).
+ */
+export function rgbFrame(width: number, height: number, bytesPerSample: 1 | 2): { bytes: Buffer; image: ImageBuffer } {
+  const n = width * height * 3 * bytesPerSample;
+  const bytes = Buffer.alloc(n);
+  const data = bytesPerSample === 2 ? new Uint16Array(bytes.buffer, bytes.byteOffset, n / 2) : new Uint8Array(bytes.buffer, bytes.byteOffset, n);
+  return { bytes, image: { width, height, channels: 3, data } };
+}
 
 /** Reads exactly `frameBytes` at a time from a stream; `next(into)` fills `into` or returns false at a clean end. */
 export class FrameReader {

@@ -7,7 +7,7 @@
 import { renameSync, rmSync, statSync } from 'node:fs';
 import { hostname } from 'node:os';
 import { basename, dirname, join, resolve } from 'node:path';
-import { remap, type ImageBuffer, type RemapFilter } from '@skyfold/warp-core';
+import { remap, type RemapFilter } from '@skyfold/warp-core';
 import { UserError } from '../errors.js';
 import { runContext, setExitCode, writeErr } from '../io/run-context.js';
 import type { MapSettings, MapSource } from '../warp/map-source.js';
@@ -18,7 +18,7 @@ import { warn } from '../messages.js';
 import { planCarry } from './carry.js';
 import { startChild as start, stopChild as stop, type RunningChild as Running } from './child.js';
 import { planEncode, scaleMatrixName, sourceMatrix, type VideoEncodeOptions } from './encode.js';
-import { FrameReader, TruncatedFrame, writeFlushed } from './frame-stream.js';
+import { FrameReader, rgbFrame, TruncatedFrame, writeFlushed } from './frame-stream.js';
 import { type VideoInfo } from './probe.js';
 import { formatRational } from './rational.js';
 import type { VideoTools } from './tools.js';
@@ -74,23 +74,8 @@ export async function warpVideo(tools: VideoTools, source: MapSource, mapSetting
   const pixFmt = deep ? 'rgb48le' : 'rgb24';
   const plan = planEncode(output, opts, info.colour, deep);
   const map = source.build([info.width, info.height], mapSettings);
-  const bps = deep ? 2 : 1;
-  const inBytes = info.width * info.height * 3 * bps;
-  const outBytes = map.width * map.height * 3 * bps;
-  const inBuf = Buffer.alloc(inBytes);
-  const src: ImageBuffer = {
-    width: info.width,
-    height: info.height,
-    channels: 3,
-    data: deep ? new Uint16Array(inBuf.buffer, inBuf.byteOffset, inBytes / 2) : new Uint8Array(inBuf.buffer, inBuf.byteOffset, inBytes),
-  };
-  const outBuf = Buffer.alloc(outBytes);
-  const out: ImageBuffer = {
-    width: map.width,
-    height: map.height,
-    channels: 3,
-    data: deep ? new Uint16Array(outBuf.buffer, outBuf.byteOffset, outBytes / 2) : new Uint8Array(outBuf.buffer, outBuf.byteOffset, outBytes),
-  };
+  const { bytes: inBuf, image: src } = rgbFrame(info.width, info.height, deep ? 2 : 1);
+  const { bytes: outBuf, image: out } = rgbFrame(map.width, map.height, deep ? 2 : 1);
 
   const host = hostname().replace(/[^A-Za-z0-9]/g, '');
   const temp = join(dirname(output), `.${basename(output)}.skyfold-partial-${host}-${process.pid}`);
@@ -120,7 +105,7 @@ export async function warpVideo(tools: VideoTools, source: MapSource, mapSetting
     encoder = start(tools.ffmpeg, encodeArgs, 'pipe');
     const sink = encoder.child.stdin!;
     sink.on('error', () => {}); // a closed pipe is reported from the encoder's exit below
-    const reader = new FrameReader(decoder.child.stdout!, inBytes);
+    const reader = new FrameReader(decoder.child.stdout!, inBuf.length);
     // the encoder may stop early (a refused stream, a full disk): every wait below also ends then
     const gone = Symbol('encoder gone');
     const encoderGone = encoder.exited.then(() => gone);

@@ -2,12 +2,13 @@
  * Raw video pipes: frames of packed RGB (8-bit, or 16-bit little-endian) on standard input, warped
  * frames in the same layout on standard output, so skyfold can sit between two ffmpeg processes.
  */
-import { remap, type ImageBuffer, type RemapFilter } from '@skyfold/warp-core';
+import { remap, type RemapFilter } from '@skyfold/warp-core';
 import { preparedFor } from './job.js';
 import { UserError } from '../errors.js';
 import { runContext } from '../io/run-context.js';
 import type { MapSettings, MapSource } from './map-source.js';
 import { DEFAULT_MAX_PIXELS } from '../io/image-codec.js';
+import { rgbFrame, writeFlushed } from '../video/frame-stream.js';
 
 export interface RawSpec {
   width: number;
@@ -44,13 +45,6 @@ async function* rawFrames(stream: NodeJS.ReadableStream, frameBytes: number): As
   if (have > 0) throw new UserError(`--raw-in: standard input ended inside a frame (${have} of ${frameBytes} bytes)`);
 }
 
-/** Writes one frame and waits until the stream has taken it; rejects with the stream's error (EPIPE when the reader left). */
-function write(stream: NodeJS.WritableStream, bytes: Uint8Array): Promise<void> {
-  return new Promise((resolve, reject) => {
-    stream.write(bytes, (err) => (err ? reject(err) : resolve()));
-  });
-}
-
 /** The reader of standard output went away (`| head -c 1000`): a normal end of the pipe, not a failure. */
 function isClosedPipe(e: unknown): boolean {
   const code = (e as NodeJS.ErrnoException)?.code;
@@ -73,21 +67,8 @@ export async function runRawPipe(
   const map = source.build([spec.width, spec.height], s);
   const bps = spec.format === 'rgb48le' ? 2 : 1;
   const frameBytes = spec.width * spec.height * 3 * bps;
-  const outBytes = map.width * map.height * 3 * bps;
-  const outBuf = Buffer.alloc(outBytes);
-  const out: ImageBuffer = {
-    width: map.width,
-    height: map.height,
-    channels: 3,
-    data: bps === 2 ? new Uint16Array(outBuf.buffer, outBuf.byteOffset, outBytes / 2) : new Uint8Array(outBuf.buffer, outBuf.byteOffset, outBytes),
-  };
-  const inAligned = Buffer.alloc(frameBytes);
-  const src: ImageBuffer = {
-    width: spec.width,
-    height: spec.height,
-    channels: 3,
-    data: bps === 2 ? new Uint16Array(inAligned.buffer, inAligned.byteOffset, frameBytes / 2) : new Uint8Array(inAligned.buffer, inAligned.byteOffset, frameBytes),
-  };
+  const { bytes: outBuf, image: out } = rgbFrame(map.width, map.height, bps);
+  const { bytes: inAligned, image: src } = rgbFrame(spec.width, spec.height, bps);
   let frames = 0;
   const scratch = {};
   let readerGone = false;
@@ -101,7 +82,7 @@ export async function runRawPipe(
       frame.copy(inAligned); // aligned copy: 16-bit samples are read in place (little-endian hosts)
       remap(src, map, { filter, out, prepared: preparedFor(src, map, filter, scratch) });
       try {
-        await write(streams.output, outBuf);
+        await writeFlushed(streams.output, outBuf); // rejects with EPIPE when the reader left
       } catch (e) {
         if (!isClosedPipe(e)) throw e;
         readerGone = true;
