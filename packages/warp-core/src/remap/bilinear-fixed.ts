@@ -112,6 +112,7 @@ export function prepareBilinear(map: RemapMap, srcWidth: number, srcHeight: numb
 
 /** Samples output row j of `p` from s into o (code values; no gain). Returns true when the row needs scaling. */
 export function bilinearFixedRow(s: Uint8Array, p: PreparedBilinear, o: Uint8Array, j: number): boolean {
+  // one loop per channel count: the deliberate kernel copies (bilinear.ts says why)
   if (p.channels === 3) bilinearFixedRow3(s, p, o, j);
   else bilinearFixedRow4(s, p, o, j);
   return p.rowScaled[j] === 1;

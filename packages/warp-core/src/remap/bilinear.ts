@@ -7,8 +7,9 @@ import type { ImageBuffer, RemapMap } from './types.js';
  * with alpha 0. Returns true when some sampled pixel has a gain other than 1 (the row needs scaling).
  */
 export function bilinearRow(src: ImageBuffer, map: RemapMap, out: ImageBuffer, j: number): boolean {
-  // Deliberate copies, for speed: one specialised loop per channel count here and in nearest.ts and
-  // area.ts (V8 keeps each monomorphic and unrolled; a shared per-channel loop measured slower).
+  // Deliberate copies, for speed: one specialised loop per channel count here and in nearest.ts,
+  // area.ts and bilinear-fixed.ts (V8 keeps each monomorphic and unrolled; a shared per-channel loop
+  // measured slower). The duplicates tool lists these; they stay.
   switch (src.channels) {
     case 1:
       return bilinearRow1(src.data, src.width, src.height, map, out.data, j);
