@@ -121,6 +121,16 @@ export function contentVisible(tracer: Tracer, u: number, v: number, kind: numbe
   return du * du + dv * dv <= 0.25 + 1e-12;
 }
 
+/** The points of the 3 × 3 block centred on grid point k that lie inside the cols × rows grid, row by row, into `out`; returns how many. */
+function around(k: number, cols: number, rows: number, out: Int32Array): number {
+  const i = k % cols;
+  const j = (k - i) / cols;
+  let count = 0;
+  for (let jj = j - 1; jj <= j + 1; jj++)
+    for (let ii = i - 1; ii <= i + 1; ii++) if (ii >= 0 && jj >= 0 && ii < cols && jj < rows) out[count++] = jj * cols + ii;
+  return count;
+}
+
 /**
  * Gives unlit grid points finite values (u, v, brightness) by repeatedly averaging lit (or already filled) neighbours, so
  * a GPU interpolating across a cell at the edge samples nearby content instead of junk.
@@ -136,41 +146,29 @@ export function fillUnlit(cols: number, rows: number, known: Uint8Array, ...arra
   // next to the ones filled before it, averaged from those, so the work is linear in the grid.
   const queued = Uint8Array.from(have);
   let layer: number[] = [];
+  const near = new Int32Array(9);
   const enqueueAround = (k: number, into: number[]) => {
-    const i = k % cols;
-    const j = (k - i) / cols;
-    for (let dj = -1; dj <= 1; dj++)
-      for (let di = -1; di <= 1; di++) {
-        const ii = i + di;
-        const jj = j + dj;
-        if (ii < 0 || jj < 0 || ii >= cols || jj >= rows) continue;
-        const m = jj * cols + ii;
-        if (!queued[m]) {
-          queued[m] = 1;
-          into.push(m);
-        }
+    for (let a = 0, count = around(k, cols, rows, near); a < count; a++) {
+      const m = near[a];
+      if (!queued[m]) {
+        queued[m] = 1;
+        into.push(m);
       }
+    }
   };
   for (let k = 0; k < n; k++) if (have[k]) enqueueAround(k, layer);
   const F = arrays.length;
   while (layer.length > 0) {
     const vals = new Float64Array(layer.length * F);
     for (let q = 0; q < layer.length; q++) {
-      const k = layer[q];
-      const i = k % cols;
-      const j = (k - i) / cols;
       let c = 0;
-      for (let dj = -1; dj <= 1; dj++)
-        for (let di = -1; di <= 1; di++) {
-          const ii = i + di;
-          const jj = j + dj;
-          if (ii < 0 || jj < 0 || ii >= cols || jj >= rows) continue;
-          const m = jj * cols + ii;
-          if (have[m]) {
-            for (let f = 0; f < F; f++) vals[q * F + f] += arrays[f][m];
-            c++;
-          }
+      for (let a = 0, count = around(layer[q], cols, rows, near); a < count; a++) {
+        const m = near[a];
+        if (have[m]) {
+          for (let f = 0; f < F; f++) vals[q * F + f] += arrays[f][m];
+          c++;
         }
+      }
       for (let f = 0; f < F; f++) vals[q * F + f] /= c;
     }
     const next: number[] = [];
