@@ -11,20 +11,15 @@ import { DEG } from '../math.js';
 import type { Rig } from '../rig/model.js';
 import { Tracer, landsOnDome } from '../trace.js';
 import { BAKE_DEFAULTS, type BakeOptions } from './bake.js';
+import type { WarpMesh } from './mesh.js';
 import { angularScaleAt, edgeRamp, edgeSegments, litTest } from './edge.js';
 import { brightnessFactor, contentVisible, domeAreaOnGrid, fillUnlit, referenceArea } from './grid-samples.js';
 
-export interface PixelSamples {
-  /** Projector resolution; index k = y·width + x. */
-  width: number;
-  height: number;
-  /** Fisheye (u, v) at each pixel centre; unlit pixels carry their lit neighbours'. Always finite. */
-  u: Float32Array;
-  v: Float32Array;
-  /** Brightness factor in [0, 1] (filled from lit neighbours where unlit) and mask in [0, 1]. */
-  brightness: Float32Array;
-  mask: Float32Array;
-}
+/**
+ * A mesh's values with one vertex a projector pixel centre: index k = y·width + x over the projector
+ * resolution; unlit pixels carry their lit neighbours' fisheye (u, v) and brightness.
+ */
+export type PixelSamples = Pick<WarpMesh, 'width' | 'height' | 'u' | 'v' | 'brightness' | 'mask'>;
 
 export type PixelSampleOptions = Pick<BakeOptions, 'brightness' | 'brightnessFloor' | 'feather'>;
 
