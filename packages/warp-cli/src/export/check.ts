@@ -2,7 +2,7 @@
  * What every mesh reader checks before a mesh leaves it: sizes a projector can have, and values a
  * player can use. A crafted or damaged file must be refused here, not warp to black or allocate gigabytes.
  */
-import { MAX_PROJECTOR_SIDE, type WarpMesh } from '@skyfold/warp-core';
+import { createMesh, MAX_PROJECTOR_SIDE, type WarpMesh } from '@skyfold/warp-core';
 
 /** Vertices a side: one per projector pixel at most, plus the closing corner. */
 export const MAX_GRID_SIDE = MAX_PROJECTOR_SIDE + 1;
@@ -47,4 +47,18 @@ export function checkMeshValues(mesh: WarpMesh): WarpMesh {
 function show(x: unknown): string {
   const s = typeof x === 'number' ? String(x) : (JSON.stringify(x) ?? String(x));
   return s.length > 24 ? s.slice(0, 23) + '…' : s;
+}
+
+/** How to read a grid stored as an image (PFM, PNG), which does not carry the projector resolution. */
+export interface GridImageOptions {
+  /** Projector resolution the grid spans; defaults to cols−1 × rows−1 (one unit per grid step). */
+  width?: number;
+  height?: number;
+  meta?: Record<string, unknown>;
+}
+
+/** The empty mesh of an image with one pixel a vertex; throws, naming `what`, for one smaller than 2×2. */
+export function meshForGridImage(img: { width: number; height: number }, what: string, o: GridImageOptions): WarpMesh {
+  if (img.width < 2 || img.height < 2) throw new Error(`Expected ${what} of at least 2×2 but received ${img.width}×${img.height}`);
+  return createMesh(img.width, img.height, o.width ?? img.width - 1, o.height ?? img.height - 1, o.meta ?? {});
 }

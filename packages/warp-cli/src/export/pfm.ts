@@ -7,7 +7,8 @@
  * Row order is the catch: netpbm stores the rows bottom to top ('bottom-up'); the VESA MPCDI text stores
  * the first row at the top ('top-down'). Callers say which; in memory data is always top row first.
  */
-import { createMesh, type WarpMesh } from '@skyfold/warp-core';
+import type { WarpMesh } from '@skyfold/warp-core';
+import { meshForGridImage, type GridImageOptions } from './check.js';
 
 export type PfmRowOrder = 'bottom-up' | 'top-down';
 
@@ -104,12 +105,7 @@ export function writeMeshPfm(mesh: WarpMesh): Uint8Array {
   return encodePfm({ width: mesh.cols, height: mesh.rows, channels: 3, data }, { rowOrder: 'bottom-up' });
 }
 
-export interface ReadMeshPfmOptions {
-  /** Projector resolution the grid spans; defaults to cols−1 × rows−1 (one unit per grid step). */
-  width?: number;
-  height?: number;
-  meta?: Record<string, unknown>;
-}
+export type ReadMeshPfmOptions = GridImageOptions;
 
 /**
  * Reads a grid written by {@link writeMeshPfm}. The file holds brightness·mask only, so
@@ -118,11 +114,8 @@ export interface ReadMeshPfmOptions {
 export function readMeshPfm(bytes: Uint8Array, options: ReadMeshPfmOptions = {}): WarpMesh {
   const img = decodePfm(bytes, { rowOrder: 'bottom-up' });
   if (img.channels !== 3) throw new Error('Expected a 3-channel PFM ("PF") warp mesh but received a 1-channel one');
-  if (img.width < 2 || img.height < 2) throw new Error(`Expected a PFM grid of at least 2×2 but received ${img.width}×${img.height}`);
-  const cols = img.width;
-  const rows = img.height;
-  const n = cols * rows;
-  const mesh = createMesh(cols, rows, options.width ?? cols - 1, options.height ?? rows - 1, options.meta ?? {});
+  const mesh = meshForGridImage(img, 'a PFM grid', options);
+  const n = mesh.cols * mesh.rows;
   for (let i = 0; i < n; i++) {
     mesh.u[i] = img.data[i * 3];
     mesh.v[i] = img.data[i * 3 + 1];

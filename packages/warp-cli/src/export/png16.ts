@@ -15,8 +15,9 @@
  */
 import { crc32 } from 'node:zlib';
 import sharp from 'sharp';
-import { createMesh, type PixelSamples, type WarpMesh } from '@skyfold/warp-core';
+import type { PixelSamples, WarpMesh } from '@skyfold/warp-core';
 import { encodePng } from '../io/image-codec.js';
+import { meshForGridImage, type GridImageOptions } from './check.js';
 
 /** tEXt keyword and text that mark a full-resolution (per pixel centre) map. */
 export const PNG_LAYOUT_KEYWORD = 'skyfold-layout';
@@ -102,12 +103,7 @@ export async function writeMapPng(mesh: WarpMesh): Promise<Uint8Array> {
   return encodePng({ width: mesh.cols, height: mesh.rows, channels: 4, data }, 9);
 }
 
-export interface ReadMapPngOptions {
-  /** Projector resolution the grid spans; defaults to cols−1 × rows−1 (one unit per grid step). */
-  width?: number;
-  height?: number;
-  meta?: Record<string, unknown>;
-}
+export type ReadMapPngOptions = GridImageOptions;
 
 /** Reads a map written by {@link writeMapPng}; values come back quantised to 1/65535. */
 export async function readMapPng(bytes: Uint8Array, options: ReadMapPngOptions = {}): Promise<WarpMesh> {
@@ -116,11 +112,8 @@ export async function readMapPng(bytes: Uint8Array, options: ReadMapPngOptions =
   }
   const img = await decodePng16(bytes);
   if (img.channels !== 4) throw new Error(`Expected a 4-channel (RGBA) PNG map but received ${img.channels} channels`);
-  if (img.width < 2 || img.height < 2) throw new Error(`Expected a PNG map of at least 2×2 but received ${img.width}×${img.height}`);
-  const cols = img.width;
-  const rows = img.height;
-  const n = cols * rows;
-  const mesh = createMesh(cols, rows, options.width ?? cols - 1, options.height ?? rows - 1, options.meta ?? {});
+  const mesh = meshForGridImage(img, 'a PNG map', options);
+  const n = mesh.cols * mesh.rows;
   for (let i = 0; i < n; i++) {
     mesh.u[i] = img.data[i * 4] / MAX16;
     mesh.v[i] = img.data[i * 4 + 1] / MAX16;
