@@ -8,15 +8,11 @@ import { Ray, Sphere, Vector3 } from 'three';
 import { cross, dot, length, normalize, sub, type Vec3 } from '../src/math.js';
 import { insideFrame, rayToPixel } from '../src/optics/projector.js';
 import { onCap, raySphereFirstHit, reflect } from '../src/optics/mirror.js';
-import { RigError, type MirrorModel, type Rig } from '../src/rig/model.js';
+import type { MirrorModel, Rig } from '../src/rig/model.js';
 import { rigFromDocument } from '../src/rig/document.js';
 import { Tracer } from '../src/trace.js';
+import { num, randomRig, rigParams, unitVec, vec } from './random-rigs.js';
 
-const num = (min: number, max: number) => fc.double({ min, max, noNaN: true, noDefaultInfinity: true });
-const vec = (lo: number, hi: number) => fc.tuple(num(lo, hi), num(lo, hi), num(lo, hi));
-const unitVec = vec(-1, 1)
-  .filter((v) => Math.hypot(v[0], v[1], v[2]) > 0.1)
-  .map((v) => normalize(v as Vec3));
 
 const v3 = (a: readonly number[]) => new Vector3(a[0], a[1], a[2]);
 const arr = (v: { x: number; y: number; z: number }): Vec3 => [v.x, v.y, v.z];
@@ -172,64 +168,6 @@ describe('singular places of the mirror (STYLE.md 7)', () => {
 });
 
 // ——— random valid rigs ———
-
-interface RigParams {
-  R: number;
-  r: number;
-  cAz: number;
-  cAlt: number;
-  cDist: number;
-  pDir: Vec3;
-  pDist: number;
-  axisJitter: Vec3;
-  capAngle: number;
-  lookJitter: Vec3;
-  roll: number;
-  throwRatio: number;
-  shift: [number, number];
-  res: [number, number];
-}
-
-const rigParams: fc.Arbitrary<RigParams> = fc.record({
-  R: num(1.5, 12),
-  r: num(0.03, 0.15),
-  cAz: num(0, 360),
-  cAlt: num(-30, 60),
-  cDist: num(0, 0.8),
-  pDir: unitVec,
-  pDist: num(1.3, 6),
-  axisJitter: vec(-0.7, 0.7),
-  capAngle: num(30, 180),
-  lookJitter: vec(-0.5, 0.5),
-  roll: num(-180, 180),
-  throwRatio: num(0.6, 3),
-  shift: fc.tuple(num(-0.4, 0.4), num(-0.4, 0.4)),
-  res: fc.tuple(fc.integer({ min: 320, max: 3840 }), fc.integer({ min: 200, max: 2160 })),
-});
-
-/** A valid rig from random parameters (in metres), or null when the parameters break a geometry rule. */
-function randomRig(p: RigParams): Rig | null {
-  const r = p.r * p.R;
-  const ca = (p.cAlt * Math.PI) / 180;
-  const cz = (p.cAz * Math.PI) / 180;
-  const dist = p.cDist * (p.R - r);
-  const C: Vec3 = [dist * Math.cos(ca) * Math.sin(cz), dist * Math.cos(ca) * Math.cos(cz), dist * Math.sin(ca)];
-  const P: Vec3 = [C[0] + p.pDist * r * p.pDir[0], C[1] + p.pDist * r * p.pDir[1], C[2] + p.pDist * r * p.pDir[2]];
-  const toP = normalize(sub(P, C));
-  const axis = [toP[0] + p.axisJitter[0], toP[1] + p.axisJitter[1], toP[2] + p.axisJitter[2]];
-  const lookAt = [C[0] + p.lookJitter[0] * r, C[1] + p.lookJitter[1] * r, C[2] + p.lookJitter[2] * r];
-  try {
-    return rigFromDocument({
-      units: 'm',
-      dome: { radius: p.R },
-      mirror: { radius: r, center: C, axis, capAngle: p.capAngle },
-      projector: { position: P, lookAt, roll: p.roll, resolution: p.res, throwRatio: p.throwRatio, lensShift: p.shift },
-    });
-  } catch (e) {
-    if (e instanceof RigError) return null;
-    throw e;
-  }
-}
 
 /** Lit pixels of a rig: the pixels of random points on the visible part of the cap that fall in the frame. */
 function litPixels(t: Tracer, picks: [number, number][]): [number, number][] {

@@ -13,9 +13,10 @@ import { insideFrame, rayToPixel } from '../src/optics/projector.js';
 import { locateDirection } from '../src/locate.js';
 import { METRES_PER_UNIT, parseLengthString, type LengthUnit } from '../src/units.js';
 import { onCap } from '../src/optics/mirror.js';
-import { RigError, type Rig } from '../src/rig/model.js';
+import type { Rig } from '../src/rig/model.js';
 import { rigFromDocument } from '../src/rig/document.js';
 import { parseTriangleFile } from '../src/optics/dome-mesh-files.js';
+import { num, randomRig as randomRigAnyAxis, rigParamsWithContent as rigParams, type RigParamsWithContent } from './random-rigs.js';
 
 type Doc = Record<string, any>;
 
@@ -42,8 +43,6 @@ function vectorRig(file: VectorFile): Rig {
     loadMesh: (name) => parseTriangleFile(readFileSync(fileURLToPath(new URL(`../../../fixtures/vectors/${name}`, import.meta.url))), name),
   });
 }
-
-const num = (min: number, max: number) => fc.double({ min, max, noNaN: true, noDefaultInfinity: true });
 
 /** Azimuth difference in degrees, across the 0/360 seam. */
 function azDiff(a: number, b: number): number {
@@ -352,64 +351,11 @@ describe('projector conventions', () => {
 
 // ——— random valid rigs ———
 
-const unitVec = fc
-  .tuple(num(-1, 1), num(-1, 1), num(-1, 1))
-  .filter((v) => Math.hypot(...v) > 0.1)
-  .map((v) => normalize(v as Vec3));
-
-const rigParams = fc.record({
-  R: num(1.5, 12),
-  r: num(0.03, 0.15),
-  cAz: num(0, 360),
-  cAlt: num(-30, 60),
-  cDist: num(0, 0.8),
-  pDir: unitVec,
-  pDist: num(1.3, 6),
-  axisJitter: fc.tuple(num(-0.7, 0.7), num(-0.7, 0.7), num(-0.7, 0.7)),
-  capAngle: num(30, 180),
-  lookJitter: fc.tuple(num(-0.5, 0.5), num(-0.5, 0.5), num(-0.5, 0.5)),
-  roll: num(-180, 180),
-  throwRatio: num(0.6, 3),
-  shift: fc.tuple(num(-0.4, 0.4), num(-0.4, 0.4)),
-  res: fc.tuple(fc.integer({ min: 320, max: 3840 }), fc.integer({ min: 200, max: 2160 })),
-  eye: fc.tuple(num(-0.3, 0.3), num(-0.3, 0.3), num(-0.3, 0.3)),
-  fov: num(120, 360),
-});
-type RigParams = typeof rigParams extends fc.Arbitrary<infer T> ? T : never;
-
-function randomRig(p: RigParams): Rig | null {
+function randomRig(p: RigParamsWithContent): Rig | null {
   const rig = randomRigAnyAxis(p);
   // an optical axis within 1e-4 rad of vertical (and no projector.up) loses the basis' orthogonality: tested on its own
   if (rig && Math.abs(normalize(sub(rig.projector.lookAt, rig.projector.position))[2]) > Math.cos(1e-4)) return null;
   return rig;
-}
-
-function randomRigAnyAxis(p: RigParams): Rig | null {
-  const r = p.r * p.R;
-  const ca = p.cAlt * DEG;
-  const cz = p.cAz * DEG;
-  const dist = p.cDist * (p.R - r);
-  const C: Vec3 = [dist * Math.cos(ca) * Math.sin(cz), dist * Math.cos(ca) * Math.cos(cz), dist * Math.sin(ca)];
-  const P: Vec3 = [C[0] + p.pDist * r * p.pDir[0], C[1] + p.pDist * r * p.pDir[1], C[2] + p.pDist * r * p.pDir[2]];
-  const toP = normalize(sub(P, C));
-  try {
-    return rigFromDocument({
-      dome: { radius: p.R },
-      mirror: { radius: r, center: C, axis: toP.map((x, i) => x + p.axisJitter[i]), capAngle: p.capAngle },
-      projector: {
-        position: P,
-        lookAt: C.map((x, i) => x + p.lookJitter[i] * r),
-        roll: p.roll,
-        resolution: p.res,
-        throwRatio: p.throwRatio,
-        lensShift: p.shift,
-      },
-      content: { fov: p.fov, eye: p.eye.map((x) => x * p.R) },
-    });
-  } catch (e) {
-    if (e instanceof RigError) return null;
-    throw e;
-  }
 }
 
 /** The pixel of the mirror point at angle φ from the lens direction (φ = α is the silhouette) and turn ψ, if lit and in frame. */
