@@ -13,7 +13,7 @@ export const unitVec = vec(-1, 1)
   .filter((v) => Math.hypot(v[0], v[1], v[2]) > 0.1)
   .map((v) => normalize(v as Vec3));
 
-/** Dome, mirror and projector; the content keeps the document defaults. */
+/** The rig's geometry (sphere radii, the projector's place and lens); the content keeps the document defaults. */
 const RIG_ARBITRARIES = {
   R: num(1.5, 12),
   r: num(0.03, 0.15),
