@@ -1,10 +1,12 @@
 /** Reads YAML or JSON documents from disk with one-line errors that give line and column. */
 import { closeSync, fstatSync, openSync, readSync, constants as fsConstants } from 'node:fs';
 import { isMap, isScalar, isSeq, parseDocument, type Node as YamlNode } from 'yaml';
-import { RigError, rigFromDocument, rigWarnings, shortQuote, type Rig } from '@skyfold/warp-core';
+import { RigError, rigFromDocument, rigWarnings, shortQuote, type Rig, type TriangleSoup } from '@skyfold/warp-core';
 import { UserError } from '../errors.js';
 import { warn } from '../messages.js';
 import { readDomeMesh } from './dome-mesh-file.js';
+import { glbTriangles } from './glb-dome.js';
+import { GLB_DOME_NAME } from '../export/glb.js';
 
 function lineCol(text: string, pos: number): [number, number] {
   let line = 1;
@@ -216,15 +218,39 @@ export function loadRig(path: string): LoadedRig {
   let rig: Rig;
   let document: unknown;
   if (ext === '.glb') {
-    document = rigDocumentOfGlb(readBinaryFile(path, 'mesh'), path);
+    const bytes = readBinaryFile(path, 'mesh');
+    document = rigDocumentOfGlb(bytes, path);
     try {
-      rig = parse(document);
+      rig = rigFromDocument(glbStandAlone(document), { loadMesh: () => glbDome(bytes, path) });
     } catch (e) {
       if (e instanceof RigError) throw new UserError(`${path}: the rig in its extras: ${e.message}`);
       throw e;
     }
   } else ({ value: rig, document } = readDocumentFile(path, 'rig file', parse));
   return { rig, document, warnings: rigWarnings(rig).map((w) => `${path}: ${w}`), path };
+}
+
+/**
+ * A .glb baked from an as-built dome stands alone: its rig names the dome's mesh file, but the
+ * triangles travel inside it (export/glb.ts, the mesh `as-built-dome`, in metres), so the rig is read
+ * with those, their units metres, and never looks for the file beside the .glb.
+ */
+function glbStandAlone(document: unknown): unknown {
+  const dome = (document as { dome?: unknown }).dome;
+  if (dome === null || typeof dome !== 'object' || (dome as { mesh?: unknown }).mesh === undefined) return document;
+  return { ...(document as object), dome: { ...(dome as object), meshUnits: 'm' } };
+}
+
+/** The as-built dome's triangles a skyfold .glb carries; a one-line UserError when it has none or they are damaged. */
+function glbDome(bytes: Uint8Array, path: string): TriangleSoup {
+  let soup: TriangleSoup | undefined;
+  try {
+    soup = glbTriangles(bytes, GLB_DOME_NAME);
+  } catch (e) {
+    throw new UserError(`${path}: the as-built dome it carries cannot be read: ${(e as Error).message}`);
+  }
+  if (!soup) throw new UserError(`${path}: its rig has an as-built dome (dome.mesh), but the .glb carries no "${GLB_DOME_NAME}" triangles; re-bake it from the rig`);
+  return soup;
 }
 
 /**
