@@ -2,10 +2,12 @@
 import { basename, dirname, extname, join } from 'node:path';
 import { Option, type Command } from 'commander';
 import { parseDocument } from 'yaml';
-import { formatLength, parseLengthString, type MoveStep, toMetres, type LengthUnit, type RoomModel, PLAN_DEFAULTS, PLAN_OBJECTIVES, planRig, RigError, rigToDocument, type PlanCandidate, type PlanObjective, type PlanResult, type Rig } from '@skyfold/warp-core';
+import { formatLength, parseLengthString, sweepPlacement, sweepPoint, type MoveStep, toMetres, type LengthUnit, type RoomModel, PLAN_DEFAULTS, PLAN_OBJECTIVES, planRig, RigError, rigToDocument, type PlanCandidate, type PlanObjective, type PlanResult, type Rig } from '@skyfold/warp-core';
 import { readRig } from '../io/document-file.js';
 import { editRigDocument, keepCommentColumns, rigDocumentText } from '../io/rig-edit.js';
-import { writeOutputFile } from '../io/output-file.js';
+import { writeFileAtomic, writeOutputFile } from '../io/output-file.js';
+import { drawPlacementSweep } from '../pictures/placement-sweep.js';
+import { svgToPng } from '../pictures/render.js';
 import { UserError } from '../errors.js';
 import { printJson, table } from '../format.js';
 import { collect, parseNumberIn, parsePositiveInt } from '../options.js';
@@ -23,6 +25,7 @@ interface PlanCliOptions {
   lensHeight?: string;
   audience?: string;
   leastLit?: number;
+  sweep?: string;
   output?: string;
   json?: boolean;
 }
@@ -159,13 +162,14 @@ export function registerPlan(program: Command): void {
     .option('--audience <x,y,radius>', "the audience's circle on the floor: no projector there, the beam clear of eye heights over it; or none (default: room.audience)")
     .option('--least-lit <share>', "least share of the projector's pixels on the content (default: room.leastLit, else 0.25)", parseNumberIn(0, 0.99))
     .option('--rays <n>', 'about how many projector-frame points to trace when the table\'s rigs are measured, as `report --rays` does', (s) => parsePositiveInt(s), PLAN_DEFAULTS.reportVertices)
+    .option('--sweep <png>', 'also draw the placement sweep (coverage, resolution and lit share against the projector\'s distance from the mirror and height), current and best marked, as a PNG')
     .option('-o, --output <file>', 'where to write the best rig (default: RIG.planned.yaml beside the rig)')
     .option('--json', 'machine-readable output')
     .addHelpText(
       'after',
       '\nExamples:\n  skyfold plan rig.yaml\n  skyfold plan rig.yaml --vary projector.position --objective coverage\n  skyfold plan rig.yaml --vary mirror.center.z --vary projector.lookAt --seed 7 --evaluations 3000 -o better.yaml',
     )
-    .action((rigPath: string, opts: PlanCliOptions) => {
+    .action(async (rigPath: string, opts: PlanCliOptions) => {
       const rig = readRig(rigPath);
       if (opts.evaluations < 20) throw new UserError(`--evaluations: expected at least 20, got ${opts.evaluations}`);
       if (opts.rays < 1000 || opts.rays > 2_000_000) throw new UserError(`--rays: expected a number from 1000 to 2000000, got ${opts.rays}`);
@@ -185,6 +189,17 @@ export function registerPlan(program: Command): void {
         writeOutputFile(out, plannedRigText(result, rig, rigDocumentText(rigPath, rig), rigPath));
         wrote = out;
       }
+      let sweepFile: string | null = null;
+      if (opts.sweep) {
+        const sweep = sweepPlacement(rig, { objective: result.objective }, result.room);
+        const mark = best ? { point: sweepPoint(best.rig, result.room), label: 'candidate #1 (its distance and height; it may also move sideways or move the mirror)' } : null;
+        try {
+          writeFileAtomic(opts.sweep, await svgToPng(drawPlacementSweep(sweep, rig.units, { best: mark }).svg));
+        } catch (e) {
+          throw new UserError(`${opts.sweep}: cannot write the sweep picture: ${(e as Error).message}`);
+        }
+        sweepFile = opts.sweep;
+      }
       if (opts.json) {
         printJson({
           objective: result.objective,
@@ -196,6 +211,7 @@ export function registerPlan(program: Command): void {
           best: result.best.map((c) => ({ ...candidateJson(c), movesText: wordMoves(c.moves, rig.units) })),
           notes: result.notes.map((n) => wordNotice(n, rig.units)),
           file: wrote,
+          sweep: sweepFile,
         });
         if (!result.best.length) setExitCode(1);
         return;
@@ -203,6 +219,7 @@ export function registerPlan(program: Command): void {
       const lines = [planSummary(result, rig.units), '', ...result.best.map((c, i) => `#${i + 1}: ${wordMoves(c.moves, rig.units)}`), ''];
       if (!result.current.feasible) lines.push(`note: the current rig breaks a bound: ${result.current.violations.join('; ')}`);
       for (const n of result.notes) lines.push(`note: ${wordNotice(n, rig.units)}`);
+      if (sweepFile) lines.push(`wrote ${sweepFile} (the placement sweep)`);
       lines.push(wrote ? `wrote ${wrote} (candidate #1)` : result.best.length ? 'the current rig scores best by the objective; nothing written' : 'no placement found; nothing written');
       writeOut(lines.join('\n') + '\n');
       if (!result.best.length) setExitCode(1);
