@@ -35,7 +35,7 @@ describe('skyfold report', () => {
   it('prints every figure under stable keys and writes the files', () => {
     for (const k of ['coverage', 'pixels', 'resolution', 'brightness', 'spill', 'focus', 'safety']) expect(json).toHaveProperty(k);
     expect(Math.abs(json.coverage.fraction - json.coverage.fractionByInverse)).toBeLessThan(0.005);
-    for (const f of ['report.html', 'report.json', 'side-view.png', 'safety-plan.png', 'frame.png', 'resolution.png', 'brightness.png']) {
+    for (const f of ['report.html', 'report.json', 'side-view.png', 'safety-plan.png', 'frame.png', 'resolution.png', 'brightness.png', 'placement-sweep.png']) {
       expect(existsSync(join(dir, 'out', f)), f).toBe(true);
     }
     expect(JSON.parse(readFileSync(join(dir, 'out', 'report.json'), 'utf8')).coverage.fraction).toBe(json.coverage.fraction);
@@ -46,9 +46,10 @@ describe('skyfold report', () => {
     expect(html).not.toMatch(/(src|href)="(https?:)?\/\//);
     expect(html).not.toMatch(/<script/);
     expect(html).toMatch(/Never look into the beam/);
-    expect((html.match(/<figure>/g) ?? []).length).toBe(5);
+    // five pictures of the rig and the placement sweep (issue 14)
+    expect((html.match(/<figure>/g) ?? []).length).toBe(6);
     const pictures = (html.match(/<img src="data:image\/png;base64,/g) ?? []).length + (html.match(/<svg class="picture"/g) ?? []).length;
-    expect(pictures).toBe(5);
+    expect(pictures).toBe(6);
   });
 
   it('refuses a missing output folder option and a bad rig with exit 2 and one line', async () => {
@@ -96,7 +97,7 @@ describe.skipIf(!HAVE_CHROMIUM)('the report page in headless Chromium', () => {
           }),
         ),
       );
-      expect(widths).toHaveLength(5);
+      expect(widths).toHaveLength(6); // five pictures of the rig and the placement sweep
       for (const w of widths) expect(w).toBeGreaterThan(0);
       expect(await page.title()).toMatch(/skyfold report/);
       expect(errors).toEqual([]);
