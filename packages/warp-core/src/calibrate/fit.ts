@@ -13,8 +13,9 @@
  * grazing (`extendedPixelDirection`): the residual stays continuous and keeps growing with the miss,
  * so the solver is steered back rather than thrown out or stranded.
  */
+import { vec3 } from 'gl-matrix';
 import { rayDomeExit } from '../optics/dome.js';
-import { cross, directionFromAzAlt, azAltFromDirection, dot, length, normalize, sub, type ReadonlyVec3, type Vec3 } from '../math.js';
+import { directionFromAzAlt, azAltFromDirection, dot, length, normalize, sub, type ReadonlyVec3, type Vec3 } from '../math.js';
 import { onCap, raySphereFirstHit } from '../optics/mirror.js';
 import { pixelToRay, projectorFrame, type ProjectorFrame } from '../optics/projector.js';
 import { cloneRig } from '../rig/clone.js';
@@ -353,11 +354,13 @@ export function extendedPixelDirection(rig: Rig, frame: ProjectorFrame, x: numbe
   return onMirror;
 }
 
-/** Two unit vectors spanning the tangent plane at unit o (fixed for a given o). */
+/** Two unit vectors spanning the tangent plane at unit o (fixed for a given o): e1 = unit(helper × o), e2 = o × e1. */
 function tangentBasis(o: ReadonlyVec3): [Vec3, Vec3] {
-  const helper: Vec3 = Math.abs(o[2]) < 0.9 ? [0, 0, 1] : [0, 1, 0];
-  const e1 = normalize(cross(helper, o));
-  const e2 = cross(o, e1);
+  const helper: ReadonlyVec3 = Math.abs(o[2]) < 0.9 ? [0, 0, 1] : [0, 1, 0];
+  const e1: Vec3 = [0, 0, 0];
+  vec3.normalize(e1, vec3.cross(e1, helper, o));
+  const e2: Vec3 = [0, 0, 0];
+  vec3.cross(e2, o, e1);
   return [e1, e2];
 }
 

@@ -5,7 +5,7 @@
  * placement is scored by `scoring.ts`, whose bounds follow Deb's rules — so the answer never breaks
  * a bound. Deterministic for a given seed.
  */
-import { DEG, normalize, RAD, type Vec3 } from '../math.js';
+import { DEG, directionFromAzAlt, normalize, RAD, type Vec3 } from '../math.js';
 import { cloneRig } from '../rig/clone.js';
 import { OptionError, type Rig, type RoomModel } from '../rig/model.js';
 import { resolveRoom, type Room } from './room.js';
@@ -188,7 +188,7 @@ function setAxis(candidate: Rig, azimuth: number | undefined, elevation: number 
   const [currentAzimuth, currentElevation] = axisAngles(candidate.mirror.axis);
   const az = (azimuth ?? currentAzimuth) * DEG;
   const el = (elevation ?? currentElevation) * DEG;
-  candidate.mirror.axis = [Math.cos(el) * Math.sin(az), Math.cos(el) * Math.cos(az), Math.sin(el)];
+  candidate.mirror.axis = directionFromAzAlt(az, el);
 }
 
 function currentValue(rig: Rig, dimension: Dimension, room: Room): number {

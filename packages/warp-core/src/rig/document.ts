@@ -2,7 +2,8 @@
  * Rig documents (the parsed YAML/JSON of a rig file) → the Rig model, validating at the boundary:
  * every error names the dotted field, what was expected and what came.
  */
-import { DEG, length, normalize, RAD, type Vec3 } from '../math.js';
+import { vec3 } from 'gl-matrix';
+import { DEG, length, RAD, type Vec3 } from '../math.js';
 import { MAX_PROJECTOR_SIDE, RigError, validateRigGeometry, type EyeBandName, type ProjectorBody, type Rig, type RoomModel } from './model.js';
 import { DomeMesh, MAX_DOME_TRIANGLES, type TriangleSoup } from '../optics/dome-mesh.js';
 import { canonicalUnit, fromMetres, isLengthUnit, LENGTH_UNITS, LengthSyntaxError, METRES_PER_UNIT, parseLengthString, type LengthUnit } from '../units.js';
@@ -188,7 +189,7 @@ export class FieldReader {
     const d: Vec3 = [v[0], v[1], v[2]];
     if (!Number.isFinite(length(d))) throw new RigError(field, `expected a direction of moderate numbers (its length overflows), got ${showValue(v)}`);
     if (!(length(d) > 1e-12)) throw new RigError(field, `expected a non-zero direction, got ${showValue(v)}`);
-    return normalize(d);
+    return vec3.normalize(d, d) as Vec3;
   }
 
   number(v: unknown, field: string, check?: (x: number) => boolean, expected = 'a number'): number {
