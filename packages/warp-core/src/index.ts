@@ -15,21 +15,20 @@ export { rigWarnings } from './rig/warnings.js';
 
 export { pixelToRay, rayToPixel, projectorFrame, type ProjectorFrame } from './optics/projector.js';
 export { directionToFisheye, fisheyeToDirection } from './optics/fisheye.js';
-export { facetFigures, type FacetFigures } from './analysis/facets.js';
-export { DomeMesh, MAX_DOME_TRIANGLES, meshNominalRadius, openUpwardRays, type DomeMeshSource, type TriangleSoup } from './optics/dome-mesh.js';
-export { MeshFileError, parseTriangleFile, triangleFileFormat, type TriangleFileFormat } from './optics/dome-mesh-files.js';
-export { TriangleBvh } from './optics/triangle-bvh.js';
+export type { FacetFigures } from './analysis/facets.js';
+export { DomeMesh, type DomeMeshSource, type TriangleSoup } from './optics/dome-mesh.js';
+export { MeshFileError, parseTriangleFile } from './optics/dome-mesh-files.js';
 export { geodesicDome, geodesicObj, icosahedron, type GeodesicDome, type GeodesicOptions, type StrutClass, type TriangleKind } from './optics/geodesic.js';
-export { HitKind, Tracer, allocGridOutput, landsOnDome, tracePixel, type GridOutput, type HitName, type TraceResult } from './trace.js';
-export { domePointFromEye, domePointSeen, locateDirection, type LocateFailure, type LocateResult } from './locate.js';
+export { HitKind, Tracer, allocGridOutput, tracePixel, type GridOutput, type HitName, type TraceResult } from './trace.js';
+export { domePointSeen, locateDirection, type LocateFailure, type LocateResult } from './locate.js';
 
 export { createMesh, meshVertexPosition, type WarpMesh } from './mesh/mesh.js';
 export { BAKE_DEFAULTS, bakeMesh, checkShowsContent, type BakeOptions, type BakeResult, type MeshAccuracy } from './mesh/bake.js';
 export { pixelMapFromFillLayout, pixelMapFromMesh, pixelMapFromRig, type AlphaMap, type SourceOrientation } from './mesh/pixel-map.js';
 export { pixelSamples, type PixelSampleOptions, type PixelSamples } from './mesh/pixel-samples.js';
-export { fillLayoutFromMesh, fillLayoutFromRig, fillSamplePosition, type FillLayoutGrid } from './mesh/fill-layout.js';
+export { fillLayoutFromMesh, fillLayoutFromRig, type FillLayoutGrid } from './mesh/fill-layout.js';
 export { REMAP_DEFAULTS, createImageLike, remap } from './remap/remap.js';
-export { FIXED_FRACTION_BITS, fixedBilinearApplies, prepareBilinear, type PreparedBilinear } from './remap/bilinear-fixed.js';
+export { fixedBilinearApplies, prepareBilinear, type PreparedBilinear } from './remap/bilinear-fixed.js';
 export type { ImageBuffer, RemapFilter, RemapMap } from './remap/types.js';
 export { simulationMap, type SimulateOptions } from './simulate.js';
 
