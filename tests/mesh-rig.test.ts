@@ -138,7 +138,7 @@ describe('every command on a mesh-dome rig', () => {
   });
 
   it('plan searches and writes a rig that keeps the mesh', async () => {
-    await ok('plan', at('rig.json'), '--vary', 'projector.lookAt', '--evaluations', '24', '-o', at('planned.yaml'));
+    await ok('plan', at('rig.json'), '--vary', 'projector.lookAt', '--evaluations', '24', '--rays', '4000', '-o', at('planned.yaml'));
     // plan keeps the user's rig document (here JSON inside the YAML file), its dome.mesh with it
     expect(parseYaml(readFileSync(at('planned.yaml'), 'utf8')).dome.mesh).toBe('vectors-c-dome.obj');
   });

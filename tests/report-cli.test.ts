@@ -110,7 +110,7 @@ describe.skipIf(!HAVE_CHROMIUM)('the report page in headless Chromium', () => {
 
 describe('skyfold plan', () => {
   it('improves the deliberately poor placement and writes the best rig', async () => {
-    const r = await skyfold(dir, 'plan', POOR, '--vary', 'projector.position', '--evaluations', '150', '--seed', '2', '-o', 'best.yaml', '--json');
+    const r = await skyfold(dir, 'plan', POOR, '--vary', 'projector.position', '--evaluations', '150', '--seed', '2', '--rays', '20000', '-o', 'best.yaml', '--json');
     expect(r.code, r.stderr).toBe(0);
     const p = JSON.parse(r.stdout);
     expect(p.best.length).toBeGreaterThan(0);

@@ -106,7 +106,7 @@ describe('the report page states the set-up it judges', () => {
 describe('the planner and the starter file speak the rig units', () => {
   it('words the assumed projector body in feet and inches for a rig in feet, in centimetres for one in cm', () => {
     const rig = loadRig(fixture('demo-rig-ft.yaml')).rig;
-    const tiny = { vary: ['projector.position.y'], objective: 'coverage', evaluations: 6, keep: 1, vertices: 300, refineVertices: 300 } as const;
+    const tiny = { vary: ['projector.position.y'], objective: 'coverage', evaluations: 6, keep: 1, vertices: 300, refineVertices: 300, reportVertices: 300 } as const;
     const bodyNote = (units: 'ft' | 'cm') => {
       const n = planRig({ ...rig, units }, tiny).notes.find((x) => x.rule === 'plan.body-assumed')!;
       return wordNotice(n, units);

@@ -24,7 +24,7 @@ describe('notices', () => {
   });
 
   it('the planner notes an assumed floor and body with their lengths in metres and no unit in the text', () => {
-    const result = planRig(rigWithoutFloor(), { vary: ['projector.position.y'], evaluations: 20, keep: 1, vertices: 300, refineVertices: 300 });
+    const result = planRig(rigWithoutFloor(), { vary: ['projector.position.y'], evaluations: 20, keep: 1, vertices: 300, refineVertices: 300, reportVertices: 300 });
     const floor = result.notes.find((n) => n.rule === 'plan.floor-assumed')!;
     expect(floor.parameter).toBe('dome.floor');
     expect(floor.lengths?.depth).toBeCloseTo(1.25, 12); // half the dome radius, the planner's stand-in floor

@@ -19,7 +19,7 @@ function rig(): Rig {
 describe('plan progress', () => {
   it('reports steps done of a fixed total, never backwards, last at the total; the answer is the same without it', () => {
     const calls: [number, number][] = [];
-    const settings = { vary: ['projector.position'], evaluations: 40, seed: 11, refineVertices: 2000, vertices: 500 };
+    const settings = { vary: ['projector.position'], evaluations: 40, seed: 11, refineVertices: 2000, vertices: 500, reportVertices: 2000 };
     const watched = planRig(rig(), { ...settings, onProgress: (done, total) => calls.push([done, total]) });
     const plain = planRig(rig(), settings);
     expect(watched.best.map((c) => c.values)).toEqual(plain.best.map((c) => c.values));
