@@ -34,13 +34,15 @@ import { chromium, type Browser, type Page } from 'playwright-core';
 import {
   locateDirection,
   pixelMapFromMesh,
+  pixelMapFromTriangles,
   remap,
   smoothCard,
   Tracer,
   type ImageBuffer,
+  type TriangleWarpMesh,
   type WarpMesh,
 } from '@skyfold/warp-core';
-import { loadRig, readGlb } from '@skyfold/warp-cli';
+import { loadRig, readAnyGlb, readGlb } from '@skyfold/warp-cli';
 import { DEMO_RIG, ROOT, skyfold } from './support.js';
 
 const RIG = DEMO_RIG;
@@ -274,6 +276,7 @@ describe.skipIf(!HAVE_CHROMIUM)("playback: the .glb in three.js (headless Chromi
   let browser: Browser | undefined;
   let webgl: { renderer: string; maxTexture: number } | null = null;
   let mesh: WarpMesh;
+  let adaptive: TriangleWarpMesh | undefined;
   let grid: [number, number];
   let keepDir = false;
   /** The GPU's frames, top row first, RGBA. */
@@ -326,7 +329,13 @@ describe.skipIf(!HAVE_CHROMIUM)("playback: the .glb in three.js (headless Chromi
       ),
     );
     writeFileSync(join(dir, 'white.png'), await pngBytes({ width: 64, height: 64, channels: 3, data: new Uint8Array(64 * 64 * 3).fill(255) }));
-    const [baked, launched, bakedFlat] = await Promise.allSettled([bake, launch, bakeFlat]);
+    // and the adaptive mesh (issue 11), drawn beside the uniform one
+    const bakeAdaptive = skyfold(['bake', RIG, '-o', 'adaptive.glb', '--adaptive'], { cwd: dir }).then((r) => {
+      if (r.code !== 0) throw new Error(`skyfold bake --adaptive: exit ${r.code}: ${r.stderr}`);
+      return r;
+    });
+    const [baked, launched, bakedFlat, bakedAdaptive] = await Promise.allSettled([bake, launch, bakeFlat, bakeAdaptive]);
+    if (bakedAdaptive.status === 'rejected') throw bakedAdaptive.reason;
     if (launched.status === 'fulfilled') browser = launched.value; // closed in afterAll whatever happens next
     if (baked.status === 'rejected') throw baked.reason;
     if (bakedFlat.status === 'rejected') throw bakedFlat.reason;
@@ -374,7 +383,15 @@ describe.skipIf(!HAVE_CHROMIUM)("playback: the .glb in three.js (headless Chromi
     const top = new Uint8Array(W * H);
     for (let j = 0; j < H; j++) for (let i = 0; i < W; i++) top[j * W + i] = px[((H - 1 - j) * W + i) * 4];
     gpu.flatMask = top;
-  }, 150_000);
+    adaptive = (await readAnyGlb(new Uint8Array(readFileSync(join(dir, 'adaptive.glb'))))).triangles;
+    const ad = await page.evaluate(([w, h]) => (globalThis as any).renderWarp('/adaptive.glb', [{ texture: '/smooth.png', mode: 'code' }], w, h), [W, H] as const);
+    expect(ad.frames[0].glError).toBe(0);
+    expect(ad.meshes).toBe(1);
+    const apx = gunzipSync(ad.frames[0].pixels);
+    const atop = new Uint8Array(W * H * 4);
+    for (let j = 0; j < H; j++) atop.set(apx.subarray((H - 1 - j) * W * 4, (H - j) * W * 4), j * W * 4);
+    gpu.adaptive = atop;
+  }, 240_000);
 
   afterAll(async () => {
     await browser?.close();
@@ -438,6 +455,28 @@ describe.skipIf(!HAVE_CHROMIUM)("playback: the .glb in three.js (headless Chromi
     expect(inner.mean, `mean |GPU − CPU|${where}`).toBeLessThan(2);
     expect(inner.p99, `99th percentile |GPU − CPU|${where}`).toBeLessThan(8);
     expect(lightInDark, `GPU light where every vertex is unlit${where}`).toBe(0);
+  });
+
+  it("draws the smooth card through the adaptive mesh like skyfold's CPU warp through it, beside the uniform one", async (ctx) => {
+    needWebgl(ctx);
+    expect(adaptive, 'bake --adaptive writes a mesh of triangles').toBeDefined();
+    const frame = gpu.adaptive;
+    const { inside } = cpuSide();
+    // both interpolate the same triangles affinely: away from the mask edge they agree as the grid's do
+    const cpu = remap(src, pixelMapFromTriangles(adaptive!, [N, N]), { filter: 'bilinear', linearGain: false });
+    const inner = compare(frame, 4, cpu, inside);
+    const uniform = compare(gpu['smooth-code'], 4, cpu, inside);
+    console.log(
+      `playback, adaptive mesh (${adaptive!.x.length} vertices, the uniform grid ${mesh.cols * mesh.rows}): inside ${inner.pixels} px: mean |GPU − CPU| ${inner.mean.toFixed(3)}, p99 ${inner.p99}, max ${inner.max}; ` +
+        `the uniform mesh's GPU frame against it: mean ${uniform.mean.toFixed(3)}, p99 ${uniform.p99}`,
+    );
+    expect(inner.pixels).toBeGreaterThan(0.3 * W * H);
+    const ok = inner.mean < 2 && inner.p99 < 8;
+    const where = ok ? '' : ` (diff image: ${await writeDiff('adaptive', frame, cpu)})`;
+    expect(inner.mean, `mean |GPU − CPU|${where}`).toBeLessThan(2);
+    expect(inner.p99, `99th percentile |GPU − CPU|${where}`).toBeLessThan(8);
+    // and the two meshes show the same picture: the uniform one drawn by the GPU against the adaptive one on the CPU
+    expect(uniform.mean).toBeLessThan(2);
   });
 
   it("puts the front of the dome and its right side where skyfold's inverse trace puts them", (ctx) => {

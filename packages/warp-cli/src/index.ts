@@ -2,7 +2,7 @@
 export { buildProgram, main, run, type RunIO } from './main.js';
 export { loadRig, parseDocumentText, type LoadedRig } from './io/document-file.js';
 export { decodeMesh, encodeMesh, formatFromPath, MESH_FORMATS, type MeshFormat } from './export/index.js';
-export { readGlb, writeGlb } from './export/glb.js';
+export { readAnyGlb, readGlb, writeGlb, writeTriangleGlb } from './export/glb.js';
 export { DEMO_RIG, starterRigText } from './demo-rig.js';
 export type { BatchSummary } from './warp/summary.js';
 export { findVideoTools, tryVideoTools, type VideoTools } from './video/tools.js';

@@ -24,7 +24,7 @@ export { domePointSeen, locateDirection, type LocateFailure, type LocateResult }
 
 export { createMesh, meshVertexPosition, type WarpMesh } from './mesh/mesh.js';
 export { BAKE_DEFAULTS, bakeMesh, checkShowsContent, type BakeOptions, type BakeResult, type MeshAccuracy } from './mesh/bake.js';
-export { pixelMapFromFillLayout, pixelMapFromMesh, pixelMapFromRig, type AlphaMap, type SourceOrientation } from './mesh/pixel-map.js';
+export { pixelMapFromFillLayout, pixelMapFromMesh, pixelMapFromRig, pixelMapFromTriangles, type AlphaMap, type SourceOrientation } from './mesh/pixel-map.js';
 export { pixelSamples, type PixelSampleOptions, type PixelSamples } from './mesh/pixel-samples.js';
 export { fillLayoutFromMesh, fillLayoutFromRig, type FillLayoutGrid } from './mesh/fill-layout.js';
 export { REMAP_DEFAULTS, createImageLike, remap } from './remap/remap.js';
@@ -49,3 +49,4 @@ export { EDGE_SHARE, OPEN_ROOM, ROOM_DEFAULTS, resolveRoom, type Room } from './
 export { DOME_PATTERN_DEFAULTS, drawDomePattern, type PatternDot } from './pattern/dome-master.js';
 export { drawMarkerFrame, type Marker } from './pattern/markers.js';
 export { gridCard, smoothCard, starField } from './pattern/test-card.js';
+export { ADAPTIVE_DEFAULTS, bakeAdaptive, gridAsTriangles, measureTriangles, type AdaptiveBake, type AdaptiveOptions, type TriangleAccuracy, type TriangleWarpMesh } from './mesh/adaptive.js';

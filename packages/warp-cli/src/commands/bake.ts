@@ -1,10 +1,10 @@
 /** `skyfold bake`: the warp mesh, with its measured accuracy, in open formats. */
 import { Option, type Command } from 'commander';
-import { BAKE_DEFAULTS, bakeMesh, fillLayoutFromRig, pixelSamples, RigError, rigToDocument, type BakeOptions, type BakeResult, type LengthUnit } from '@skyfold/warp-core';
+import { ADAPTIVE_DEFAULTS, BAKE_DEFAULTS, bakeAdaptive, bakeMesh, type AdaptiveBake, type TriangleAccuracy, fillLayoutFromRig, pixelSamples, RigError, rigToDocument, type BakeOptions, type BakeResult, type LengthUnit } from '@skyfold/warp-core';
 import { readRig } from '../io/document-file.js';
 import { writeOutputFile } from '../io/output-file.js';
 import { UserError } from '../errors.js';
-import { encodeMesh, formatFromPath, MESH_FORMATS, type MeshFormat } from '../export/index.js';
+import { encodeMesh, formatFromPath, MESH_FORMATS, TRIANGLE_FORMATS, type MeshFormat } from '../export/index.js';
 import { printJson } from '../format.js';
 import { collect, parseNumberIn, parsePositiveInt, parseSize } from '../options.js';
 import { VERSION } from '../version.js';
@@ -20,6 +20,8 @@ export interface BakeCliOptions extends Pick<BakeOptions, 'tolerance' | 'masterS
   format?: MeshFormat;
   grid?: [number, number];
   alphaResolution: AlphaResolution;
+  adaptive?: boolean;
+  smallestCell: number;
   json?: boolean;
 }
 
@@ -51,6 +53,19 @@ export function bakeSummary(r: BakeResult, files: string[], units: LengthUnit): 
   };
 }
 
+/** The adaptive mesh's figures beside the uniform grid's, as --json prints them. */
+export function adaptiveSummary(a: AdaptiveBake, smallestCell: number): Record<string, unknown> {
+  const figures = (t: TriangleAccuracy) => ({
+    vertices: t.vertices,
+    triangles: t.triangles,
+    litPixels: t.pixels,
+    withinTolerance: t.withinTolerance,
+    errorP99Projector: t.errorP99Projector,
+    errorP999Projector: t.errorP999Projector,
+  });
+  return { smallestCell, ...figures(a.accuracy), uniform: figures(a.uniform) };
+}
+
 export function registerBake(program: Command): void {
   program
     .command('bake')
@@ -70,6 +85,8 @@ export function registerBake(program: Command): void {
         .default('grid'),
     )
     .option('--json', 'machine-readable summary')
+    .option('--adaptive', 'write .glb and .obj as an adaptive mesh: cells split where the error exceeds --tolerance, down to --smallest-cell (the grid formats stay regular)')
+    .option('--smallest-cell <px>', 'side of the adaptive mesh\'s smallest cell, projector pixels', parseNumberIn(0.25, 64), ADAPTIVE_DEFAULTS.smallestCell)
     .addHelpText('after', '\nExamples:\n  skyfold bake rig.yaml -o mesh.glb\n  skyfold bake rig.yaml -o mesh.mpcdi --alpha-resolution full\n  skyfold bake rig.yaml -o mesh.glb -o mesh.mpcdi -o mesh.csv --feather 2\n  skyfold bake rig.yaml -o mesh.glb --grid 321x201 --json')
     .action(async (rigPath: string, opts: BakeCliOptions) => {
       const rig = readRig(rigPath);
@@ -81,6 +98,10 @@ export function registerBake(program: Command): void {
       if (opts.grid && (opts.grid[0] > rig.projector.resolution[0] + 1 || opts.grid[1] > rig.projector.resolution[1] + 1)) {
         throw new UserError(`--grid: at most one vertex per projector pixel (${rig.projector.resolution[0] + 1}x${rig.projector.resolution[1] + 1}), got ${opts.grid.join('x')}`);
       }
+      if (opts.adaptive && !targets.some((t) => TRIANGLE_FORMATS.includes(t.format))) {
+        throw new UserError('--adaptive: only .glb and .obj can carry an adaptive mesh (the other formats are grids by definition); give a .glb or .obj output');
+      }
+      if (!opts.adaptive && opts.smallestCell !== ADAPTIVE_DEFAULTS.smallestCell) throw new UserError('--smallest-cell: only with --adaptive');
       const settings = {
         grid: opts.grid,
         tolerance: opts.tolerance,
@@ -98,20 +119,30 @@ export function registerBake(program: Command): void {
         throw e;
       }
       meta.bake = { ...settings, grid: [result.mesh.cols, result.mesh.rows], accuracy: result.accuracy, edge: result.edge, areaMax: result.areaMax };
+      let adaptive: AdaptiveBake | undefined;
+      if (opts.adaptive) {
+        adaptive = bakeAdaptive(rig, result, { smallestCell: opts.smallestCell }, { ...meta, bake: { ...meta.bake, adaptive: { smallestCell: opts.smallestCell } } });
+        adaptive.mesh.meta = { ...adaptive.mesh.meta, bake: { ...(meta.bake as object), adaptive: adaptiveSummary(adaptive, opts.smallestCell) } };
+      }
       const perPixel = opts.alphaResolution === 'full' && targets.some((t) => t.format === 'mpcdi' || t.format === 'png');
       const pixels = perPixel ? pixelSamples(rig, settings) : undefined;
       // MPCDI's warp grid is in the standard's fill layout, traced at its own sample positions
       const warp = targets.some((t) => t.format === 'mpcdi') ? fillLayoutFromRig(rig, result.mesh.cols, result.mesh.rows) : undefined;
       for (const t of targets) {
-        writeOutputFile(t.path, await encodeMesh(result.mesh, t.format, { pixels, mpcdi: { warp }, dome: rig.dome.mesh }));
+        writeOutputFile(t.path, await encodeMesh(result.mesh, t.format, { pixels, mpcdi: { warp }, dome: rig.dome.mesh, adaptive: TRIANGLE_FORMATS.includes(t.format) ? adaptive?.mesh : undefined }));
       }
-      const summary = { ...bakeSummary(result, targets.map((t) => t.path), rig.units), alphaResolution: opts.alphaResolution };
+      const summary = {
+        ...bakeSummary(result, targets.map((t) => t.path), rig.units),
+        alphaResolution: opts.alphaResolution,
+        ...(adaptive ? { adaptive: adaptiveSummary(adaptive, opts.smallestCell) } : {}),
+      };
       if (opts.json) {
         printJson(summary);
         return;
       }
       const a = result.accuracy;
-      const f = (x: number) => (Number.isFinite(x) ? x.toFixed(3) : 'unbounded');
+      const f = (x: number) => (Number.isFinite(x) && x < 1e6 ? x.toFixed(3) : 'unbounded');
+      const pct = (x: number) => `${(x * 100).toFixed(2)}%`;
       const lines = [
         `grid            ${result.mesh.cols} x ${result.mesh.rows} vertices (${a.cells} lit cells measured)`,
         `lit vertices    ${(result.litFraction * 100).toFixed(1)}%`,
@@ -121,6 +152,12 @@ export function registerBake(program: Command): void {
         `tolerance       ${opts.tolerance} projector px; ${(a.overTolerance * 100).toFixed(2)}% of lit cells exceed it (${(a.triangles.overTolerance * 100).toFixed(2)}% as triangles)`,
         `edge            mean ${f(result.edge.mean)}, p99 ${f(result.edge.p99)}, max ${f(result.edge.max)} projector px from the exact edge (the mask's 0.5 level on the two triangles per cell, ${result.edge.samples} samples)`,
         `brightness      ${result.brightnessMin.toFixed(3)} .. ${result.brightnessMax.toFixed(3)} (strength ${opts.brightness}, floor ${opts.brightnessFloor})`,
+        ...(adaptive
+          ? [
+              `adaptive        ${adaptive.accuracy.vertices} vertices (.glb .obj), smallest cell ${opts.smallestCell} px: within the tolerance over ${pct(adaptive.accuracy.withinTolerance)} of the lit area, p99.9 ${f(adaptive.accuracy.errorP999Projector)} projector px`,
+              `uniform grid    ${adaptive.uniform.vertices} vertices: within the tolerance over ${pct(adaptive.uniform.withinTolerance)} of the lit area, p99.9 ${f(adaptive.uniform.errorP999Projector)} projector px (both measured at every lit projector pixel)`,
+            ]
+          : []),
         ...result.notes.map((n) => `note            ${wordNotice(n, rig.units)}`),
         ...targets.map((t) => `wrote           ${t.path} (${t.format}${pixels && (t.format === 'mpcdi' || t.format === 'png') ? ', traced at every projector pixel' : ''})`),
       ];

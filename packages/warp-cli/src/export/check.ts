@@ -2,7 +2,7 @@
  * What every mesh reader checks before a mesh leaves it: sizes a projector can have, and values a
  * player can use. A crafted or damaged file must be refused here, not warp to black or allocate gigabytes.
  */
-import { createMesh, MAX_PROJECTOR_SIDE, type WarpMesh } from '@skyfold/warp-core';
+import { createMesh, MAX_PROJECTOR_SIDE, type TriangleWarpMesh, type WarpMesh } from '@skyfold/warp-core';
 
 /** Vertices a side: one per projector pixel at most, plus the closing corner. */
 export const MAX_GRID_SIDE = MAX_PROJECTOR_SIDE + 1;
@@ -61,4 +61,21 @@ export interface GridImageOptions {
 export function meshForGridImage(img: { width: number; height: number }, what: string, o: GridImageOptions): WarpMesh {
   if (img.width < 2 || img.height < 2) throw new Error(`Expected ${what} of at least 2×2 but received ${img.width}×${img.height}`);
   return createMesh(img.width, img.height, o.width ?? img.width - 1, o.height ?? img.height - 1, o.meta ?? {});
+}
+
+/** As {@link checkMeshValues}, for an adaptive mesh of triangles; vertices inside the frame too. */
+export function checkTriangleValues(mesh: TriangleWarpMesh): TriangleWarpMesh {
+  const n = mesh.x.length;
+  for (let i = 0; i < n; i++) {
+    const x = mesh.x[i];
+    const y = mesh.y[i];
+    // float32 NDC turned back into pixels may stray by a rounding step past the frame's border
+    const slack = 1e-3;
+    if (!(x >= -slack && x <= mesh.width + slack && y >= -slack && y <= mesh.height + slack)) throw new Error(`Expected vertex ${i} inside the projector frame but it is at (${show(x)}, ${show(y)})`);
+    if (!(Math.abs(mesh.u[i]) <= MAX_UV && Math.abs(mesh.v[i]) <= MAX_UV)) throw new Error(`Expected finite fisheye (u, v) within ±${MAX_UV} at vertex ${i} but received (${show(mesh.u[i])}, ${show(mesh.v[i])})`);
+    const b = mesh.brightness[i];
+    const m = mesh.mask[i];
+    if (!(b >= 0 && b <= 1 && m >= 0 && m <= 1)) throw new Error(`Expected brightness and mask in [0, 1] at vertex ${i} but received ${show(b)} and ${show(m)}`);
+  }
+  return mesh;
 }

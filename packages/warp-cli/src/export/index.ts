@@ -1,10 +1,11 @@
 /** Warp mesh files: one module per format, and a format-by-name front door for the CLI. */
-import type { PixelSamples, WarpMesh } from '@skyfold/warp-core';
+import type { PixelSamples, TriangleWarpMesh, WarpMesh } from '@skyfold/warp-core';
 import { checkMeshValues } from './check.js';
 import { readCsv, writeCsv } from './csv.js';
-import { readGlb, writeGlb, type GlbDome } from './glb.js';
+import { readAnyGlb, readGlb, writeGlb, writeTriangleGlb, type GlbDome } from './glb.js';
+import { checkTriangleValues } from './check.js';
 import { readMpcdi, writeMpcdi, type MpcdiOptions } from './mpcdi.js';
-import { readObj, writeObj } from './obj.js';
+import { readObj, readTriangleObj, writeObj, writeTriangleObj } from './obj.js';
 import { readMeshPfm, writeMeshPfm } from './pfm.js';
 import { readMapPng, writeMapPng, writePixelMapPng } from './png16.js';
 
@@ -25,15 +26,34 @@ export interface EncodeMeshOptions {
   pixels?: PixelSamples;
   /** An as-built dome's triangles, for the formats that carry them (.glb). */
   dome?: GlbDome;
+  /** The adaptive mesh, written instead of the grid to the formats that can carry triangles (.glb, .obj). */
+  adaptive?: TriangleWarpMesh;
+}
+
+/** The formats that can carry the adaptive mesh of triangles; the others are grids by definition. */
+export const TRIANGLE_FORMATS: readonly MeshFormat[] = ['glb', 'obj'];
+
+/** A .glb or .obj skyfold wrote: its grid, or its adaptive mesh of triangles. */
+export async function decodeAnyMesh(bytes: Uint8Array, format: MeshFormat): Promise<{ grid: WarpMesh; triangles?: undefined } | { grid?: undefined; triangles: TriangleWarpMesh }> {
+  if (format === 'glb') {
+    const r = await readAnyGlb(bytes);
+    return r.grid ? { grid: checkMeshValues(r.grid) } : { triangles: r.triangles };
+  }
+  if (format === 'obj') {
+    const text = new TextDecoder().decode(bytes);
+    const t = readTriangleObj(text);
+    return t ? { triangles: checkTriangleValues(t) } : { grid: checkMeshValues(readObj(text)) };
+  }
+  return { grid: await decodeMesh(bytes, format) };
 }
 
 /** The mesh as the bytes of a file in the given format (text formats UTF-8). */
 export async function encodeMesh(mesh: WarpMesh, format: MeshFormat, options: EncodeMeshOptions = {}): Promise<Uint8Array> {
   switch (format) {
     case 'glb':
-      return writeGlb(mesh, options.dome);
+      return options.adaptive ? writeTriangleGlb(options.adaptive, options.dome) : writeGlb(mesh, options.dome);
     case 'obj':
-      return new TextEncoder().encode(writeObj(mesh));
+      return new TextEncoder().encode(options.adaptive ? writeTriangleObj(options.adaptive) : writeObj(mesh));
     case 'pfm':
       return writeMeshPfm(mesh);
     case 'mpcdi':

@@ -1,9 +1,9 @@
 /** Where a warp's map comes from: an exact per-pixel trace of a rig, or a baked mesh in any format bake writes. */
 import { createHash } from 'node:crypto';
-import { BAKE_DEFAULTS, checkShowsContent, pixelMapFromFillLayout, pixelMapFromMesh, RigError, type AlphaMap, type FillLayoutGrid, pixelMapFromRig, rigToDocument, type RemapMap, type SourceOrientation, type WarpMesh, type Rig } from '@skyfold/warp-core';
+import { BAKE_DEFAULTS, checkShowsContent, pixelMapFromFillLayout, pixelMapFromMesh, pixelMapFromTriangles, type TriangleWarpMesh, RigError, type AlphaMap, type FillLayoutGrid, pixelMapFromRig, rigToDocument, type RemapMap, type SourceOrientation, type WarpMesh, type Rig } from '@skyfold/warp-core';
 import { readBinaryFile, readRig } from '../io/document-file.js';
 import { UserError } from '../errors.js';
-import { decodeMesh, formatFromPath, type MeshFormat } from '../export/index.js';
+import { decodeAnyMesh, formatFromPath, type MeshFormat } from '../export/index.js';
 import { checkMeshValues } from '../export/check.js';
 import { readMpcdi } from '../export/mpcdi.js';
 import { readMeshPfm } from '../export/pfm.js';
@@ -56,7 +56,10 @@ export interface MapSourceOptions {
 }
 
 /** What a mesh file read for warping yields: the grid, or for .mpcdi the fill-layout warp and its alpha map. */
-type ReadMesh = { mesh: WarpMesh; fill?: undefined } | { mesh: WarpMesh; fill: { warp: FillLayoutGrid; alpha: AlphaMap } };
+type ReadMesh =
+  | { mesh: WarpMesh; fill?: undefined; triangles?: undefined }
+  | { mesh: WarpMesh; fill: { warp: FillLayoutGrid; alpha: AlphaMap }; triangles?: undefined }
+  | { mesh?: undefined; fill?: undefined; triangles: TriangleWarpMesh };
 
 /** Formats that keep brightness apart from the mask, so `--brightness 0` can drop it. */
 const SEPARATE_BRIGHTNESS: readonly MeshFormat[] = ['glb', 'obj', 'png', 'csv'];
@@ -83,14 +86,15 @@ async function readMeshForWarp(path: string, format: MeshFormat, bytes: Uint8Arr
     } else if (format === 'png') {
       read = { mesh: await readMapPng(bytes, { width: size![0], height: size![1] }) };
     } else {
-      read = { mesh: await decodeMesh(bytes, format) };
+      const any = await decodeAnyMesh(bytes, format);
+      read = any.grid ? { mesh: any.grid } : { triangles: any.triangles! };
     }
-    checkMeshValues(read.mesh);
+    if (read.mesh) checkMeshValues(read.mesh);
   } catch (e) {
     if (e instanceof UserError) throw e;
     throw new UserError(`${path}: not a skyfold warp mesh: ${(e as Error).message.split('\n')[0]}`);
   }
-  const { width, height } = read.mesh;
+  const { width, height } = read.mesh ?? read.triangles!;
   if (size && (size[0] !== width || size[1] !== height)) {
     throw new UserError(`${path}: the mesh spans a ${width}x${height} projector, not the ${size[0]}x${size[1]} of --projector-size`);
   }
@@ -107,12 +111,13 @@ export async function loadMapSource(path: string, cacheDir: string | undefined =
     const bytes = readBinaryFile(path, 'mesh');
     const read = await readMeshForWarp(path, format, bytes, options.projectorSize);
     const mesh = read.mesh;
-    const key = 'mesh:' + createHash('sha256').update(bytes).digest('hex') + (SIZELESS.includes(format) ? ` ${mesh.width}x${mesh.height}` : '');
+    const frame = read.mesh ?? read.triangles!;
+    const key = 'mesh:' + createHash('sha256').update(bytes).digest('hex') + (SIZELESS.includes(format) ? ` ${frame.width}x${frame.height}` : '');
     return {
       kind: 'mesh',
       format,
-      width: mesh.width,
-      height: mesh.height,
+      width: frame.width,
+      height: frame.height,
       key,
       mesh,
       build(size, s) {
@@ -120,7 +125,12 @@ export async function loadMapSource(path: string, cacheDir: string | undefined =
         if (s.brightness === 0 && !SEPARATE_BRIGHTNESS.includes(format)) {
           throw new UserError(`--brightness 0: a .${format} warp mesh holds brightness and mask as one factor, so brightness cannot be turned off; warp from the rig or a .glb`);
         }
-        if (read.fill) return pixelMapFromFillLayout(read.fill.warp, read.fill.alpha, mesh.width, mesh.height, size, s);
+        if (read.triangles) {
+          const t = read.triangles;
+          return pixelMapFromTriangles(s.brightness === 0 ? { ...t, brightness: new Float32Array(t.brightness.length).fill(1) } : t, size, s);
+        }
+        if (read.fill) return pixelMapFromFillLayout(read.fill.warp, read.fill.alpha, frame.width, frame.height, size, s);
+        if (!mesh) throw new Error('a mesh source with no mesh');
         // compensation off: keep only the mask, which the mesh carries separately
         const m = s.brightness === 0 ? { ...mesh, brightness: new Float32Array(mesh.brightness.length).fill(1) } : mesh;
         return pixelMapFromMesh(m, size, s);

@@ -96,7 +96,7 @@ function vertexCoords(n: number, size: number): Float64Array {
  * Builds the mesh for a given grid: (u, v) per vertex, brightness, and the mask ramp across the exact
  * edge (edge.ts); unlit vertices carry (u, v) and brightness from their lit neighbours.
  */
-export function buildMesh(tracer: Tracer, cols: number, rows: number, o: BakeOptions, areaMax: number, meta: Record<string, unknown> = {}, lit: LitTest = litTest(tracer)): WarpMesh {
+export function buildMesh(tracer: Tracer, cols: number, rows: number, o: BakeOptions, areaMax: number, meta: Record<string, unknown> = {}, lit: LitTest = litTest(tracer), rampCells = 1): WarpMesh {
   const { width: W, height: H } = tracer.frame;
   const xs = vertexCoords(cols, W);
   const ys = vertexCoords(rows, H);
@@ -112,8 +112,9 @@ export function buildMesh(tracer: Tracer, cols: number, rows: number, o: BakeOpt
     mesh.brightness[k] = litAt[k] ? brightnessFactor(area[k], areaMax, { strength: o.brightness, floor: o.brightnessFloor }) : 0;
   }
   const segments = edgeSegments(lit, xs, ys, litAt);
-  // 1% over the cell diagonal: every vertex of a triangle the edge crosses stays inside the ramp
-  const minHalfWidth = 1.01 * Math.hypot(W / (cols - 1), H / (rows - 1));
+  // 1% over the cell diagonal (of `rampCells` cells a side, for the adaptive mesh's edge cells): every
+  // vertex of a triangle the edge crosses stays inside the ramp
+  const minHalfWidth = 1.01 * rampCells * Math.hypot(W / (cols - 1), H / (rows - 1));
   mesh.mask.set(edgeRamp(segments, xs, ys, litAt, { minHalfWidth, featherRad: o.feather * DEG, angularScale: o.feather > 0 ? angularScaleAt(tracer, lit) : undefined }));
   fillUnlit(cols, rows, traced, g.u, g.v);
   fillUnlit(cols, rows, litAt, mesh.brightness);

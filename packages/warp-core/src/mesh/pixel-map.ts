@@ -6,6 +6,7 @@ import type { Rig } from '../rig/model.js';
 import type { RemapMap } from '../remap/types.js';
 import { BAKE_DEFAULTS, interpolateCell, type BakeOptions } from './bake.js';
 import { pixelSamples } from './pixel-samples.js';
+import { rasterTriangles, type TriangleWarpMesh } from './adaptive.js';
 import type { FillLayoutGrid } from './fill-layout.js';
 import type { WarpMesh } from './mesh.js';
 
@@ -107,6 +108,22 @@ export function pixelMapFromMesh(mesh: WarpMesh, size: [number, number], o: Sour
     }
   }
   return finishMap(u, v, gain, size, o, W, H);
+}
+
+/** Interpolates a mesh of triangles (the adaptive mesh) at every projector pixel centre, as a GPU draws it: the RemapMap it implies. */
+export function pixelMapFromTriangles(mesh: TriangleWarpMesh, size: [number, number], o: SourceOrientation = {}): RemapMap {
+  const n = mesh.width * mesh.height;
+  const u = new Float32Array(n);
+  const v = new Float32Array(n);
+  const gain = new Float32Array(n);
+  rasterTriangles(mesh, (k, a, b, c, wa, wb, wc) => {
+    u[k] = wa * mesh.u[a] + wb * mesh.u[b] + wc * mesh.u[c];
+    v[k] = wa * mesh.v[a] + wb * mesh.v[b] + wc * mesh.v[c];
+    const m = wa * mesh.mask[a] + wb * mesh.mask[b] + wc * mesh.mask[c];
+    const br = wa * mesh.brightness[a] + wb * mesh.brightness[b] + wc * mesh.brightness[c];
+    gain[k] = m > 0 ? m * br : 0;
+  });
+  return finishMap(u, v, gain, size, o, mesh.width, mesh.height);
 }
 
 /** A light factor per projector pixel (an MPCDI alpha map), samples in [0, 1], the top row first. */
