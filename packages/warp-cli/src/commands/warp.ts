@@ -11,6 +11,7 @@ import { runRawPipe, parseRawSpec } from '../warp/raw-pipe.js';
 import { recogniseVideo } from '../video/recognise.js';
 import { runVideoWarp } from '../video/command.js';
 import { VIDEO_CODECS, type VideoCodec } from '../video/encode.js';
+import { DEFAULT_SEGMENT_SECONDS } from '../video/segments.js';
 
 interface WarpOptions {
   output?: string;
@@ -23,6 +24,7 @@ interface WarpOptions {
   feather: number;
   frames?: [number, number];
   shard?: [number, number];
+  segment?: number;
   jobs?: number;
   flip?: boolean;
   nonSquare?: boolean;
@@ -53,7 +55,8 @@ export function registerWarp(program: Command): void {
     .option('--brightness-floor <f>', 'lowest brightness factor', parseNumberIn(0, 1), BAKE_DEFAULTS.brightnessFloor)
     .option('--feather <deg>', 'soft edge width in degrees', parseNumberIn(0, 90), BAKE_DEFAULTS.feather)
     .option('--frames <a-b>', 'only frames numbered A to B (the number in the file name, else the position from 1)', asOptionParser('--frames', parseFrameRange))
-    .option('--shard <k/n>', 'only frame K of every N (K from 1), to split a show across machines', asOptionParser('--shard', parseShard))
+    .option('--shard <k/n>', 'only frame K of every N (K from 1), to split a show across machines; for a video, the K-th of N blocks of its segments, joined by a later plain run', asOptionParser('--shard', parseShard))
+    .option('--segment <seconds>', `a warped video is made in segments of this length, each kept once finished (default ${DEFAULT_SEGMENT_SECONDS})`, parseNumberIn(0.001, 86_400))
     .option('--jobs <n>', 'worker threads (default: the core count)', (s) => parsePositiveInt(s))
     .option('--flip', 'the content arrives mirrored left-right')
     .option('--non-square', 'warp frames that are not square (a dome master is): u across the width, v down the height')
@@ -72,6 +75,7 @@ export function registerWarp(program: Command): void {
       '\nExamples:\n  skyfold warp rig.yaml show/ -o warped/\n  skyfold warp rig.yaml show.mp4 -o warped.mp4\n  skyfold warp mesh.glb "show/frame_%05d.png" -o warped/ --frames 1-500 --jobs 4\n' +
         '  skyfold warp mesh.pfm show/ -o warped/ --projector-size 1920x1200\n' +
         '  skyfold warp rig.yaml show/ -o /shared/warped --shard 3/8\n' +
+        '  skyfold warp rig.yaml show.mp4 -o /shared/warped.mp4 --shard 3/8   (then once: skyfold warp rig.yaml show.mp4 -o /shared/warped.mp4)\n' +
         '  ffmpeg -i show.mp4 -f rawvideo -pix_fmt rgb24 - | skyfold warp rig.yaml --raw-in 4096x4096 | ffmpeg -f rawvideo -pix_fmt rgb24 -s 1920x1200 -r 30 -i - out.mp4',
     )
     .action(async (source: string, inputs: string[], opts: WarpOptions, cmd: Command) => {
@@ -95,10 +99,21 @@ export function registerWarp(program: Command): void {
       }
       const video = await recogniseVideo(inputs, opts.ffmpeg);
       if (video) {
-        await runVideoWarp(video, map, mapSettings, { output: opts.output, filter: opts.filter, json: opts.json, codec: opts.codec, crf: opts.crf, preset: opts.preset });
+        for (const o of ['frames', 'format', 'quality', 'compression'] as const) if (opts[o] !== undefined) throw new UserError(`--${o}: not for a video input (it is warped whole, to a video file)`);
+        await runVideoWarp(video, map, mapSettings, {
+          output: opts.output,
+          filter: opts.filter,
+          json: opts.json,
+          codec: opts.codec,
+          crf: opts.crf,
+          preset: opts.preset,
+          shard: opts.shard,
+          segmentSeconds: opts.segment,
+          overwrite: opts.overwrite,
+        });
         return;
       }
-      for (const o of ['codec', 'crf', 'preset'] as const) if (opts[o] !== undefined) throw new UserError(`--${o}: only for a video input`);
+      for (const o of ['codec', 'crf', 'preset', 'segment'] as const) if (opts[o] !== undefined) throw new UserError(`--${o}: only for a video input`);
       if (inputs.length === 0) throw new UserError('warp: give input frames (files, folders or a sequence pattern), or --raw-in');
       if (!opts.output) throw new UserError('warp: give an output folder with -o');
       const compression = opts.compression === undefined ? undefined : Number(opts.compression);

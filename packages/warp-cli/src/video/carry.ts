@@ -35,6 +35,8 @@ export interface CarryPlan {
   args: string[];
   /** One line per stream left out, for a warning. */
   dropped: string[];
+  /** The source's indices of the streams carried. */
+  streams: number[];
 }
 
 export function planCarry(info: VideoInfo, muxer: string): CarryPlan {
@@ -42,6 +44,7 @@ export function planCarry(info: VideoInfo, muxer: string): CarryPlan {
   // the warped frames are shown upright: no rotation carried over from the source's picture
   if (info.rotation !== 0) args.push('-metadata:s:0', 'rotate=0');
   const dropped: string[] = [];
+  const streams: number[] = [];
   let k = 1;
   for (const s of info.others) {
     // a timecode track travels as the picture's timecode tag (mapped above; the .mov muxer writes
@@ -53,7 +56,8 @@ export function planCarry(info: VideoInfo, muxer: string): CarryPlan {
       continue;
     }
     args.push('-map', `1:${s.index}`, `-map_metadata:s:${k}`, `1:s:${s.index}`, `-c:${k}`, 'copy');
+    streams.push(s.index);
     k++;
   }
-  return { args, dropped };
+  return { args, dropped, streams };
 }

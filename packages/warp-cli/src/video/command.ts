@@ -12,6 +12,9 @@ export interface VideoCommandOptions extends VideoEncodeOptions {
   output?: string;
   filter: RemapFilter;
   json?: boolean;
+  shard?: [number, number];
+  segmentSeconds?: number;
+  overwrite?: boolean;
 }
 
 export async function runVideoWarp(video: VideoInput, map: MapSource, mapSettings: MapSettings, o: VideoCommandOptions): Promise<void> {
@@ -22,6 +25,9 @@ export async function runVideoWarp(video: VideoInput, map: MapSource, mapSetting
   if (o.json) printJson(summary);
   else {
     const v = summary.video;
-    info(`${summary.done} frames warped (${v.size.join('x')} at ${v.rate} fps -> ${v.projector.join('x')} ${v.codec}) in ${summary.seconds.toFixed(1)} s -> ${summary.output}`);
+    const g = summary.segments;
+    const already = summary.skipped > 0 ? `, ${summary.skipped} already done` : '';
+    const where = g.joined ? summary.output : `${g.parts} (segments of shard ${o.shard!.join('/')}; a plain run joins them into ${summary.output})`;
+    info(`${summary.done} frames warped${already} (${v.size.join('x')} at ${v.rate} fps -> ${v.projector.join('x')} ${v.codec}) in ${summary.seconds.toFixed(1)} s -> ${where}`);
   }
 }

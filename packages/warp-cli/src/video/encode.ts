@@ -69,8 +69,10 @@ export function scaleMatrixName(space: string): string {
 export interface EncodePlan {
   muxer: string;
   codec: VideoCodec;
-  /** ffmpeg arguments after the inputs and maps: video filter, codec, settings, colour tags. */
+  /** ffmpeg arguments that encode the frames: video filter, codec, settings, colour tags. */
   args: string[];
+  /** ffmpeg arguments for the final container only (its codec tag, where the index goes). */
+  containerArgs: string[];
 }
 
 /**
@@ -94,23 +96,24 @@ export function planEncode(output: string, o: VideoEncodeOptions, colour: VideoC
   const primaries = colour.primaries ?? 'bt709';
   const transfer = colour.transfer ?? 'bt709';
   const args: string[] = [];
+  const containerArgs: string[] = [];
   if (codec === 'ffv1') {
     // lossless and RGB: the samples go in as they are, no matrix, no range squeeze
     args.push('-c:v', 'ffv1', '-level', '3', '-pix_fmt', deep ? 'rgb48le' : 'bgr0');
     args.push('-color_primaries', primaries, '-color_trc', transfer, '-colorspace', 'rgb', '-color_range', 'pc');
-    return { muxer: container.muxer, codec, args };
+    return { muxer: container.muxer, codec, args, containerArgs: [] };
   }
   const space = colour.space && colour.space in SCALE_MATRIX ? colour.space : 'bt709';
   args.push('-vf', `scale=out_color_matrix=${scaleMatrixName(space)}:out_range=tv:flags=accurate_rnd+full_chroma_int`);
   if (codec === 'h264') args.push('-c:v', 'libx264', '-preset', preset, '-crf', crf, '-pix_fmt', 'yuv420p');
   else if (codec === 'hevc') {
     args.push('-c:v', 'libx265', '-preset', preset, '-crf', crf, '-pix_fmt', deep ? 'yuv420p10le' : 'yuv420p', '-x265-params', 'log-level=error');
-    if (container.muxer === 'mp4' || container.muxer === 'mov') args.push('-tag:v', 'hvc1'); // Apple players want hvc1 (common practice)
+    if (container.muxer === 'mp4' || container.muxer === 'mov') containerArgs.push('-tag:v', 'hvc1'); // Apple players want hvc1 (common practice)
   } else if (codec === 'prores') {
     // profile 3 = ProRes 422 HQ in ffmpeg's prores_ks; 'apl0' the vendor most players expect (common practice)
     args.push('-c:v', 'prores_ks', '-profile:v', '3', '-vendor', 'apl0', '-pix_fmt', 'yuv422p10le');
   } else args.push('-c:v', 'libvpx-vp9', '-crf', crf, '-b:v', '0', '-row-mt', '1', '-pix_fmt', 'yuv420p');
   args.push('-color_primaries', primaries, '-color_trc', transfer, '-colorspace', space, '-color_range', 'tv');
-  if (container.muxer === 'mp4' || container.muxer === 'mov') args.push('-movflags', '+faststart');
-  return { muxer: container.muxer, codec, args };
+  if (container.muxer === 'mp4' || container.muxer === 'mov') containerArgs.push('-movflags', '+faststart');
+  return { muxer: container.muxer, codec, args, containerArgs };
 }

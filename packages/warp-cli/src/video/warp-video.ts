@@ -4,20 +4,23 @@
  * source's exact rate and start time. The result is written under a temporary name and renamed
  * only when every frame made it.
  */
-import { renameSync, rmSync, statSync } from 'node:fs';
-import { hostname } from 'node:os';
+import { existsSync, realpathSync, renameSync, rmSync, statSync } from 'node:fs';
+import { devNull } from 'node:os';
 import { basename, dirname, join, resolve } from 'node:path';
-import { remap, type RemapFilter } from '@skyfold/warp-core';
+import { remap, type RemapFilter, type RemapMap } from '@skyfold/warp-core';
 import { UserError } from '../errors.js';
 import { runContext, setExitCode, writeErr } from '../io/run-context.js';
 import type { MapSettings, MapSource } from '../warp/map-source.js';
 import { Progress } from '../warp/progress.js';
-import { stopOnSignals } from '../warp/stop-signal.js';
+import { stopOnSignals, type StopSignal } from '../warp/stop-signal.js';
+import { hostTag, partialTag } from '../warp/output-folder.js';
+import { writeFileAtomic } from '../io/output-file.js';
 import type { BatchSummary } from '../warp/summary.js';
 import { warn } from '../messages.js';
-import { planCarry } from './carry.js';
-import { startChild as start, stopChild as stop, type RunningChild as Running } from './child.js';
-import { planEncode, scaleMatrixName, sourceMatrix, type VideoEncodeOptions } from './encode.js';
+import { planCarry, type CarryPlan } from './carry.js';
+import { runToEnd, startChild as start, stopChild as stop, type RunningChild as Running } from './child.js';
+import { planEncode, scaleMatrixName, sourceMatrix, type EncodePlan, type VideoEncodeOptions } from './encode.js';
+import { concatList, DEFAULT_SEGMENT_SECONDS, openPartsFolder, planSegments, recordSegment, segmentFrames, segmentName, shardSegments, type PartsFolder, type SegmentPlan } from './segments.js';
 import { FrameReader, rgbFrame, TruncatedFrame, writeFlushed } from './frame-stream.js';
 import { type VideoInfo } from './probe.js';
 import { formatRational } from './rational.js';
@@ -28,15 +31,28 @@ export interface VideoWarpOptions extends VideoEncodeOptions {
   output: string;
   /** Progress on a terminal. */
   progress: boolean;
+  /** Only the K-th of N blocks of segments, into the parts folder, without joining. */
+  shard?: [number, number];
+  /** Segment length (DEFAULT_SEGMENT_SECONDS when not given). */
+  segmentSeconds?: number;
+  /** Make every segment again, even those a earlier run finished. */
+  overwrite?: boolean;
 }
 
 export interface VideoWarpSummary extends BatchSummary {
   video: { size: [number, number]; projector: [number, number]; rate: string; codec: string; pixFmt: string; rotation: number };
+  /** How the run went by segments: of `count` (`frames` each), this run's share `mine`, `warped` of them made now; the parts folder when left for a join. */
+  segments: { count: number; frames: number; mine: number; warped: number; joined: boolean; parts?: string };
 }
 
 /** ffmpeg arguments that decode the first video stream to packed RGB, every frame once, in the source's matrix and range. */
-export function decodeArgs(info: VideoInfo, pixFmt: 'rgb24' | 'rgb48le'): string[] {
-  const args = ['-v', 'error', '-nostdin', '-i', info.path, '-map', `0:${info.videoIndex}`, '-fps_mode', 'passthrough'];
+export function decodeArgs(info: VideoInfo, pixFmt: 'rgb24' | 'rgb48le', from = 0): string[] {
+  const args = ['-v', 'error', '-nostdin'];
+  // from frame `from` on: an input seek is exact when decoding (frames before the target are
+  // decoded and dropped), relative to the file's start; aim half a frame early so that rounding
+  // cannot drop the frame itself
+  if (from > 0) args.push('-ss', (info.startTime - info.fileStart + ((from - 0.5) * info.rate.den) / info.rate.num).toFixed(6));
+  args.push('-i', info.path, '-map', `0:${info.videoIndex}`, '-fps_mode', 'passthrough');
   if (!info.rgb) {
     const matrix = scaleMatrixName(sourceMatrix(info.colour, info.height));
     const range = info.colour.range ?? (info.pixFmt.startsWith('yuvj') ? 'pc' : 'tv');
@@ -48,14 +64,26 @@ export function decodeArgs(info: VideoInfo, pixFmt: 'rgb24' | 'rgb48le'): string
 
 class Stopped extends Error {}
 
+const STOPPED = Symbol('stopped');
+const GONE = Symbol('encoder gone');
+
+/** An error of the source itself: its segments are of no use, the parts folder goes with it. */
+class SourceError extends UserError {}
+
+function sourceError(message: string): UserError {
+  return new SourceError(message);
+}
+
 /** The decoder reported an error while about `frames` frames had come through (it reads a little ahead). */
 function damaged(info: VideoInfo, frames: number, line: string): UserError {
-  return new UserError(`${info.path}: damaged stream from about frame ${frames + 1} of ${info.frameCount} on: ${line}; nothing was written`);
+  return sourceError(`${info.path}: damaged stream from about frame ${frames + 1} of ${info.frameCount} on: ${line}; nothing was written`);
 }
 
 /**
- * Warps `info`'s video through `source`'s map into `opts.output`. Throws UserError when any frame
- * cannot be made; undefined when a signal stopped the run (exit code 130, nothing written).
+ * Warps `info`'s video through `source`'s map into `opts.output`, segment by segment (segments.ts):
+ * finished segments are kept between runs, a shard makes only its block of them, a plain run joins
+ * them all. Throws UserError when any frame cannot be made; undefined when a signal stopped the run
+ * (exit code 130; the finished segments are kept, the output is not written).
  */
 export async function warpVideo(tools: VideoTools, source: MapSource, mapSettings: MapSettings, info: VideoInfo, opts: VideoWarpOptions): Promise<VideoWarpSummary | undefined> {
   const t0 = performance.now();
@@ -63,99 +91,231 @@ export async function warpVideo(tools: VideoTools, source: MapSource, mapSetting
     throw new UserError(`${info.path}: the video is ${info.width}x${info.height}; a dome master is square (a fisheye circle in a square frame)`);
   }
   const output = resolve(opts.output);
-  try {
-    const a = statSync(output);
-    const b = statSync(info.path);
-    if (a.dev === b.dev && a.ino === b.ino) throw new UserError(`${opts.output}: is the input video; write the warped video to another file`);
-  } catch (e) {
-    if (e instanceof UserError) throw e;
-  }
+  refuseInputAsOutput(output, info.path, opts.output);
   const deep = info.bitDepth > 8;
   const pixFmt = deep ? 'rgb48le' : 'rgb24';
   const plan = planEncode(output, opts, info.colour, deep);
-  const map = source.build([info.width, info.height], mapSettings);
-  const { bytes: inBuf, image: src } = rgbFrame(info.width, info.height, deep ? 2 : 1);
-  const { bytes: outBuf, image: out } = rgbFrame(map.width, map.height, deep ? 2 : 1);
-
-  const host = hostname().replace(/[^A-Za-z0-9]/g, '');
-  const temp = join(dirname(output), `.${basename(output)}.skyfold-partial-${host}-${process.pid}`);
-  const rate = formatRational(info.rate);
   const carry = planCarry(info, plan.muxer);
   for (const d of carry.dropped) warn(`${info.path}: left out ${d}`);
-  const encodeArgs = ['-v', 'error', '-nostdin', '-y', '-f', 'rawvideo', '-pix_fmt', pixFmt, '-video_size', `${map.width}x${map.height}`, '-framerate', rate];
-  // times as in the source: ffmpeg starts each input at zero, so the frames are placed after the
-  // file's earliest stream and the whole output moved to the file's start (an output offset:
-  // -itsoffset alone lands half a frame off in Matroska)
-  const lead = info.startTime - info.fileStart;
-  if (lead > 0) encodeArgs.push('-itsoffset', String(lead));
-  encodeArgs.push('-i', 'pipe:0', '-i', info.path, '-map', '0:v', ...carry.args, ...plan.args);
-  if (info.fileStart !== 0) encodeArgs.push('-output_ts_offset', String(info.fileStart));
-  encodeArgs.push('-f', plan.muxer, temp);
-
-  let decoder: Running | undefined;
-  let encoder: Running | undefined;
-  let frames = 0;
-  const stderr = runContext().stderr;
-  const progress = new Progress(info.frameCount, stderr, opts.progress && Boolean(stderr.isTTY));
-  // a signal ends the children and the run; nothing is left under the output's name
+  if (!opts.shard) await checkCarried(tools, info, plan, carry, opts.output);
+  const map = source.build([info.width, info.height], mapSettings);
+  const segs = planSegments(info.frameCount, info.rate, opts.segmentSeconds ?? DEFAULT_SEGMENT_SECONDS);
+  const src = statSync(info.path);
+  const identity = JSON.stringify({
+    source: { path: realpathSync(info.path), size: src.size, mtimeMs: src.mtimeMs },
+    map: source.key,
+    mapSettings,
+    filter: opts.filter,
+    projector: [map.width, map.height],
+    pixFmt,
+    encode: plan.args,
+    rate: formatRational(info.rate),
+    frames: info.frameCount,
+    framesPerSegment: segs.framesPerSegment,
+  });
+  const parts = openPartsFolder(output, identity, segs, Boolean(opts.overwrite));
+  if (parts.restarted) warn(`${parts.dir}: its segments were made from another source, rig or settings; starting again`);
+  const mine = shardSegments(segs, opts.shard);
+  const todo = mine.filter((k) => !parts.done.has(k));
+  const framesOf = (ks: number[]) => ks.reduce((sum, k) => sum + segmentFrames(segs, k)[1] - segmentFrames(segs, k)[0], 0);
+  const total = framesOf(mine);
+  const skipped = total - framesOf(todo);
+  const job: SegmentJob = { tools, info, map, filter: opts.filter, pixFmt, plan, segs, parts, todo, output: opts.output, progress: opts.progress };
   const signal = stopOnSignals();
-  const stopped = signal.stopped.then(() => Symbol('stopped'));
+  let warped = 0;
   try {
-    decoder = start(tools.ffmpeg, decodeArgs(info, pixFmt), 'ignore');
-    encoder = start(tools.ffmpeg, encodeArgs, 'pipe');
-    const sink = encoder.child.stdin!;
-    sink.on('error', () => {}); // a closed pipe is reported from the encoder's exit below
-    const reader = new FrameReader(decoder.child.stdout!, inBuf.length);
-    // the encoder may stop early (a refused stream, a full disk): every wait below also ends then
-    const gone = Symbol('encoder gone');
-    const encoderGone = encoder.exited.then(() => gone);
-    for (;;) {
-      const more = await Promise.race([reader.next(inBuf).catch((e: unknown) => (e instanceof TruncatedFrame ? false : Promise.reject(e))), encoderGone, stopped]);
-      if (more !== true) break;
-      // ffmpeg conceals a damaged packet and carries on; any error it reports fails the run instead
-      if (decoder.stderr.text) throw damaged(info, frames, decoder.stderr.firstLine);
-      remap(src, map, { filter: opts.filter, out });
-      const wrote = await Promise.race([writeFlushed(sink, outBuf).catch(() => gone), encoderGone, stopped]);
-      if (wrote === gone || signal.stopping) break;
-      frames++;
-      progress.tick(String(frames), true);
-    }
-    if (signal.stopping) throw new Stopped();
-    sink.end();
-    if (encoder.child.exitCode !== null || encoder.child.signalCode !== null) stop(decoder);
-    const [dcode, ecode] = await Promise.all([decoder.exited, encoder.exited]);
-    progress.finish();
-    if (ecode !== 0) throw new UserError(`${opts.output}: ffmpeg could not write the video: ${encoder.stderr.firstLine || `exit ${ecode}`}`);
-    if (decoder.stderr.text && dcode === 0) throw damaged(info, frames, decoder.stderr.firstLine);
-    if (dcode !== 0) {
-      throw new UserError(`${info.path}: decoding failed at frame ${frames + 1} of ${info.frameCount}: ${decoder.stderr.firstLine || `exit ${dcode}`}`);
-    }
-    if (frames !== info.frameCount) {
-      const missing = frames < info.frameCount ? `frames ${frames + 1}-${info.frameCount} did not decode (a damaged stream?)` : `${frames - info.frameCount} more than its packets`;
-      throw new UserError(`${info.path}: got ${frames} of ${info.frameCount} frames: ${missing}; nothing was written`);
-    }
-    renameSync(temp, output);
+    warped = await warpSegments(job, signal, (n) => (warped = n));
+    if (!opts.shard) await joinSegments(job, carry, output, signal);
   } catch (e) {
-    stop(decoder);
-    stop(encoder);
-    await Promise.all([decoder?.exited, encoder?.exited]);
-    rmSync(temp, { force: true });
+    if (e instanceof SourceError) rmSync(parts.dir, { recursive: true, force: true });
     if (!(e instanceof Stopped)) throw e;
-    progress.finish();
-    writeErr(`skyfold: stopped after ${frames} of ${info.frameCount} frames; nothing was written to ${opts.output}\n`);
+    writeErr(`skyfold: stopped after ${warped} of ${total - skipped} frames; nothing was written to ${opts.output} (finished segments are kept in ${parts.dir}: run the same command again to go on)\n`);
     setExitCode(130);
     return undefined;
   } finally {
     signal.dispose();
   }
   return {
-    done: frames,
-    skipped: 0,
+    done: warped,
+    skipped,
     failed: 0,
     failures: [],
-    total: info.frameCount,
+    total,
     output: opts.output,
     seconds: (performance.now() - t0) / 1000,
-    video: { size: [info.width, info.height], projector: [map.width, map.height], rate, codec: plan.codec, pixFmt: info.pixFmt, rotation: info.rotation },
+    video: { size: [info.width, info.height], projector: [map.width, map.height], rate: formatRational(info.rate), codec: plan.codec, pixFmt: info.pixFmt, rotation: info.rotation },
+    segments: { count: segs.count, frames: segs.framesPerSegment, mine: mine.length, warped: todo.length, joined: !opts.shard, parts: opts.shard ? parts.dir : undefined },
   };
+}
+
+function refuseInputAsOutput(output: string, input: string, named: string): void {
+  try {
+    const a = statSync(output);
+    const b = statSync(input);
+    if (a.dev === b.dev && a.ino === b.ino) throw new UserError(`${named}: is the input video; write the warped video to another file`);
+  } catch (e) {
+    if (e instanceof UserError) throw e;
+  }
+}
+
+/**
+ * The streams carried over must fit the output's container; a container that refuses one says so
+ * before any frame is warped: ffmpeg writes just the header of a file holding only those streams.
+ */
+async function checkCarried(tools: VideoTools, info: VideoInfo, plan: EncodePlan, carry: CarryPlan, named: string): Promise<void> {
+  if (carry.streams.length === 0) return;
+  const args = ['-v', 'error', '-nostdin', '-i', info.path, ...carry.streams.flatMap((i) => ['-map', `0:${i}`]), '-c', 'copy', '-t', '0', '-f', plan.muxer, '-y', devNull];
+  const r = await runToEnd(tools.ffmpeg, args);
+  if (r.code !== 0) throw new UserError(`${named}: ffmpeg could not write the video: ${firstLineOf(r.stderr) || `exit ${r.code}`}`);
+}
+
+function firstLineOf(text: string): string {
+  const line = text.split('\n').map((l) => l.trim()).find(Boolean) ?? '';
+  return line.replace(/^(\[[^\]]* @ 0x[0-9a-f]+\]\s*)+/, '');
+}
+
+interface SegmentJob {
+  tools: VideoTools;
+  info: VideoInfo;
+  map: RemapMap;
+  filter: RemapFilter;
+  pixFmt: 'rgb24' | 'rgb48le';
+  plan: EncodePlan;
+  segs: SegmentPlan;
+  parts: PartsFolder;
+  todo: number[];
+  output: string;
+  progress: boolean;
+}
+
+/** One decoder from the first segment to make to the last, one encoder per segment; returns the frames warped. */
+async function warpSegments(job: SegmentJob, signal: StopSignal, onFrames: (n: number) => void): Promise<number> {
+  const { info, map, segs, todo } = job;
+  if (todo.length === 0) return 0;
+  const bps = job.pixFmt === 'rgb48le' ? 2 : 1;
+  const { bytes: inBuf, image: src } = rgbFrame(info.width, info.height, bps);
+  const { bytes: outBuf, image: out } = rgbFrame(map.width, map.height, bps);
+  const first = segmentFrames(segs, todo[0])[0];
+  const end = segmentFrames(segs, todo[todo.length - 1])[1];
+  const stderr = runContext().stderr;
+  const progress = new Progress(todo.reduce((s, k) => s + segmentFrames(segs, k)[1] - segmentFrames(segs, k)[0], 0), stderr, job.progress && Boolean(stderr.isTTY));
+  const stopped = signal.stopped.then(() => STOPPED);
+  const decoder = start(job.tools.ffmpeg, decodeArgs(info, job.pixFmt, first), 'ignore');
+  let encoder: Running | undefined;
+  let temp: string | undefined;
+  let n = first;
+  let warped = 0;
+  const reader = new FrameReader(decoder.child.stdout!, inBuf.length);
+  /** Reads frame n into inBuf, failing the run on a decoder that stops early or reports damage. */
+  const read = async (): Promise<void> => {
+    const more = await Promise.race([reader.next(inBuf).catch((e: unknown) => (e instanceof TruncatedFrame ? false : Promise.reject(e))), stopped]);
+    if (more === STOPPED || signal.stopping) throw new Stopped();
+    // ffmpeg conceals a damaged packet and carries on; any error it reports fails the run instead
+    if (decoder.stderr.text) throw damaged(info, n, decoder.stderr.firstLine);
+    if (more !== true) {
+      const dcode = await decoder.exited;
+      if (decoder.stderr.text) throw damaged(info, n, decoder.stderr.firstLine);
+      if (dcode !== 0) throw sourceError(`${info.path}: decoding failed at frame ${n + 1} of ${info.frameCount}: ${decoder.stderr.firstLine || `exit ${dcode}`}`);
+      throw sourceError(`${info.path}: got ${n} of ${info.frameCount} frames: frames ${n + 1}-${info.frameCount} did not decode (a damaged stream?); nothing was written`);
+    }
+  };
+  try {
+    for (const k of todo) {
+      const [a, b] = segmentFrames(segs, k);
+      for (; n < a; n++) await read(); // a segment finished earlier, between two to make
+      temp = join(job.parts.dir, `${segmentName(k)}${partialTag(hostTag())}tmp`);
+      encoder = start(job.tools.ffmpeg, segmentEncodeArgs(job, temp), 'pipe');
+      const sink = encoder.child.stdin!;
+      sink.on('error', () => {}); // a closed pipe is reported from the encoder's exit below
+      // the encoder may stop early (a full disk): every wait below also ends then
+      const encoderGone = encoder.exited.then(() => GONE);
+      const t = performance.now();
+      for (; n < b; n++) {
+        await read();
+        remap(src, map, { filter: job.filter, out });
+        const wrote = await Promise.race([writeFlushed(sink, outBuf).catch(() => GONE), encoderGone, stopped]);
+        if (wrote === STOPPED || signal.stopping) throw new Stopped();
+        if (wrote === GONE) break;
+        onFrames(++warped);
+        progress.tick(String(n + 1), true);
+      }
+      sink.end();
+      const ecode = await encoder.exited;
+      if (ecode !== 0 || n < b) throw new UserError(`${job.output}: ffmpeg could not write the video: ${encoder.stderr.firstLine || `exit ${ecode}`}`);
+      renameSync(temp, join(job.parts.dir, segmentName(k)));
+      temp = undefined;
+      encoder = undefined;
+      recordSegment(job.parts.dir, { segment: k, frames: b - a, seconds: (performance.now() - t) / 1000 });
+    }
+    if (end < info.frameCount) stop(decoder);
+    else {
+      // the whole rest of the video was read: it must end here, cleanly
+      const extra = await Promise.race([reader.next(inBuf).catch(() => false), stopped]);
+      if (extra === STOPPED) throw new Stopped();
+      if (extra === true) throw sourceError(`${info.path}: got more than its ${info.frameCount} frames; nothing was written`);
+      const dcode = await decoder.exited;
+      if (decoder.stderr.text) throw damaged(info, n, decoder.stderr.firstLine);
+      if (dcode !== 0) throw sourceError(`${info.path}: decoding failed at frame ${n + 1} of ${info.frameCount}: ${decoder.stderr.firstLine || `exit ${dcode}`}`);
+    }
+    await decoder.exited;
+    progress.finish();
+    return warped;
+  } catch (e) {
+    stop(decoder);
+    stop(encoder);
+    await Promise.all([decoder.exited, encoder?.exited]);
+    if (temp) rmSync(temp, { force: true });
+    progress.finish();
+    throw e;
+  }
+}
+
+/** ffmpeg arguments that encode one segment's raw frames, video only, into `temp`. */
+function segmentEncodeArgs(job: SegmentJob, temp: string): string[] {
+  const size = `${job.map.width}x${job.map.height}`;
+  return ['-v', 'error', '-nostdin', '-y', '-f', 'rawvideo', '-pix_fmt', job.pixFmt, '-video_size', size, '-framerate', formatRational(job.info.rate), '-i', 'pipe:0', ...job.plan.args, '-f', 'nut', temp];
+}
+
+/**
+ * Joins every segment (stream copy) with the source's other streams into the output, under a
+ * temporary name renamed when the whole video is there, then removes the parts folder.
+ */
+async function joinSegments(job: SegmentJob, carry: CarryPlan, output: string, signal: StopSignal): Promise<void> {
+  const { info, segs, parts } = job;
+  for (let k = 0; k < segs.count; k++) {
+    if (!existsSync(join(parts.dir, segmentName(k)))) throw new UserError(`${job.output}: segment ${k + 1} of ${segs.count} is missing from ${parts.dir}; run again to make it`);
+  }
+  const list = join(parts.dir, 'concat.txt');
+  writeFileAtomic(list, concatList(segs, info.rate));
+  const temp = join(dirname(output), `.${basename(output)}${partialTag(hostTag())}tmp`);
+  const args = ['-v', 'error', '-nostdin', '-y'];
+  // times as in the source: ffmpeg starts each input at zero, so the frames are placed after the
+  // file's earliest stream and the whole output moved to the file's start (an output offset:
+  // -itsoffset alone lands half a frame off in Matroska)
+  const lead = info.startTime - info.fileStart;
+  if (lead > 0) args.push('-itsoffset', String(lead));
+  args.push('-f', 'concat', '-safe', '0', '-i', list, '-i', info.path, '-map', '0:v', ...carry.args, '-c:v', 'copy', ...job.plan.containerArgs);
+  if (info.fileStart !== 0) args.push('-output_ts_offset', String(info.fileStart));
+  args.push('-f', job.plan.muxer, temp);
+  const joiner = start(job.tools.ffmpeg, args, 'ignore');
+  try {
+    const code = await Promise.race([joiner.exited, signal.stopped.then(() => STOPPED)]);
+    if (code === STOPPED) throw new Stopped();
+    if (code !== 0) throw new UserError(`${job.output}: ffmpeg could not write the video: ${joiner.stderr.firstLine || `exit ${String(code)}`}`);
+    const count = await countFrames(job.tools, temp);
+    if (count !== info.frameCount) throw new UserError(`${job.output}: the joined video holds ${count} of ${info.frameCount} frames; nothing was written`);
+    renameSync(temp, output);
+  } catch (e) {
+    stop(joiner);
+    await joiner.exited;
+    rmSync(temp, { force: true });
+    throw e;
+  }
+  rmSync(parts.dir, { recursive: true, force: true });
+}
+
+/** The frames (packets) of a file's first video stream, counted by ffprobe. */
+async function countFrames(tools: VideoTools, path: string): Promise<number> {
+  const r = await runToEnd(tools.ffprobe, ['-v', 'error', '-select_streams', 'v:0', '-count_packets', '-show_entries', 'stream=nb_read_packets', '-of', 'csv=p=0', path]);
+  return Number.parseInt(r.stdout.trim(), 10);
 }
