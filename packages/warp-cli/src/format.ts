@@ -1,5 +1,6 @@
 /** Plain-text tables and numbers for people; JSON output goes straight through JSON.stringify. */
-import { writeOut } from './io/run-context.js';
+import { formatLength, formatTapeLength, type LengthUnit } from '@skyfold/warp-core';
+import { runContext, writeOut } from './io/run-context.js';
 
 export function table(header: string[], rows: string[][]): string {
   const widths = header.map((h, i) => rows.reduce((w, r) => Math.max(w, (r[i] ?? '').length), h.length));
@@ -14,4 +15,13 @@ export function fixed(x: number, digits: number): string {
 
 export function printJson(value: unknown): void {
   writeOut(JSON.stringify(value) + '\n');
+}
+
+/**
+ * A length for people in the rig's units: with `--fractions`, feet and inches as a tape reads them
+ * ("9 ft 1 1/2 in", to the nearest 1/16 in); otherwise, and in metric units, formatLength's decimals.
+ */
+export function lengthText(metres: number, units: LengthUnit, digits?: number): string {
+  if (runContext().fractions && (units === 'ft' || units === 'in')) return formatTapeLength(metres, units);
+  return formatLength(metres, units, digits);
 }

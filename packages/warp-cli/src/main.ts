@@ -28,6 +28,10 @@ export function buildProgram(): Command {
       // errors are worded by usageError(), so commander writes only help here: help goes to standard output
       writeErr: (str) => writeOut(str),
       outputError: () => {},
+    })
+    .option('--fractions', 'show lengths in feet and inches to the nearest 1/16 in ("9 ft 1 1/2 in") instead of decimals (rigs in ft or in)')
+    .hook('preAction', () => {
+      if (program.opts().fractions) runContext().fractions = true;
     });
   registerInit(program);
   registerProbe(program);

@@ -1,5 +1,6 @@
 /** Messages to standard error, and the core's notices and errors worded for the command line. */
-import { formatLength, OptionError, wordNotice as fillNotice, type LengthUnit, type Notice, type RigError } from '@skyfold/warp-core';
+import { OptionError, wordNotice as fillNotice, type LengthUnit, type Notice, type RigError } from '@skyfold/warp-core';
+import { lengthText } from './format.js';
 import { writeErr } from './io/run-context.js';
 
 export function warn(message: string): void {
@@ -24,7 +25,7 @@ export function optionFlag(option: string): string {
 
 /** A core notice in the CLI's words: lengths in the rig's units, options by their flags. */
 export function wordNotice(n: Notice, units: LengthUnit): string {
-  return fillNotice(n, (metres) => formatLength(metres, units), optionFlag);
+  return fillNotice(n, (metres) => lengthText(metres, units), optionFlag);
 }
 
 /** A core error in the CLI's words: an option error names the flag, a rig error its field. */

@@ -4,7 +4,7 @@
  * in and out; no files, processes or images beyond typed arrays.
  */
 export { DEG, RAD, angleBetween, azAltFromDirection, directionFromAzAlt, wrapDegrees, type ReadonlyVec3, type Vec3 } from './math.js';
-export { LENGTH_UNITS, LengthSyntaxError, METRES_PER_UNIT, formatLength, fromMetres, isLengthUnit, parseLengthString, toMetres, type LengthUnit } from './units.js';
+export { LENGTH_UNITS, LengthSyntaxError, METRES_PER_UNIT, formatLength, formatTapeLength, fromMetres, isLengthUnit, parseLengthString, toMetres, type LengthUnit } from './units.js';
 export { linearToSrgb, srgbToLinear } from './srgb.js';
 export { wordNotice, type Notice } from './notice.js';
 

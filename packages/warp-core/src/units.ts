@@ -108,3 +108,30 @@ export function formatLength(metres: number, unit: LengthUnit, digits = 3): stri
   }
   return `${Number(fromMetres(metres, unit).toFixed(digits))} ${unit}`;
 }
+
+/**
+ * A length in feet and inches (or inches) as a tape shows it, to the nearest 1/`denominator` inch
+ * (sixteenths by default), the fraction in lowest terms: "9 ft 1 1/2 in", "3/4 in", "-2 ft 0 in".
+ * parseLengthString reads it back exactly.
+ */
+export function formatTapeLength(metres: number, unit: 'ft' | 'in', denominator = 16): string {
+  const parts = Math.round(Math.abs(metres / METRES_PER_UNIT.in) * denominator);
+  const sign = parts > 0 && metres < 0 ? '-' : '';
+  const perFoot = 12 * denominator;
+  const ft = unit === 'ft' ? Math.floor(parts / perFoot) : 0;
+  const rest = parts - ft * perFoot;
+  const whole = Math.floor(rest / denominator);
+  let num = rest - whole * denominator;
+  let den = denominator;
+  for (let g = gcd(num, den); g > 1; g = gcd(num, den)) {
+    num /= g;
+    den /= g;
+  }
+  const inches = num === 0 ? `${whole} in` : whole === 0 ? `${num}/${den} in` : `${whole} ${num}/${den} in`;
+  return ft === 0 ? `${sign}${inches}` : `${sign}${ft} ft ${inches}`;
+}
+
+function gcd(a: number, b: number): number {
+  while (b !== 0) [a, b] = [b, a % b];
+  return a;
+}

@@ -1,9 +1,9 @@
 /** `skyfold geodesic`: a class I icosahedral geodesic dome as an OBJ for `dome.mesh`, and its build sheet. */
 import { basename } from 'node:path';
 import { InvalidArgumentError, Option, type Command } from 'commander';
-import { DEG, formatLength, geodesicDome, geodesicObj, isLengthUnit, LengthSyntaxError, METRES_PER_UNIT, parseLengthString, type GeodesicDome, type LengthUnit } from '@skyfold/warp-core';
+import { DEG, geodesicDome, geodesicObj, isLengthUnit, LengthSyntaxError, METRES_PER_UNIT, parseLengthString, type GeodesicDome, type LengthUnit } from '@skyfold/warp-core';
 import { UserError } from '../errors.js';
-import { fixed, printJson, table } from '../format.js';
+import { fixed, lengthText, printJson, table } from '../format.js';
 import { parseNumberIn } from '../options.js';
 import { refuseToOverwrite, writeOutputFile } from '../io/output-file.js';
 import { writeOut } from '../io/run-context.js';
@@ -81,16 +81,16 @@ export function registerGeodesic(program: Command): void {
         dome = geodesicDome({ frequency: opts.frequency, radius, keepAbove, keepFraction: fraction, skirtTo, azimuth: opts.azimuth * DEG });
       } catch (e) {
         if (!(e instanceof RangeError)) throw e;
-        if (/skirt/.test(e.message)) throw new UserError(`--skirt-to: the wall must reach below the base ring (its lowest hub is at ${formatLength(lowestHub(opts, radius, keepAbove, fraction), units)}), got "${opts.skirtTo}"`);
-        throw new UserError(`--keep-above: no face lies at or above ${formatLength(keepAbove ?? 0, units)} (the dome's top is at ${formatLength(radius, units)})`);
+        if (/skirt/.test(e.message)) throw new UserError(`--skirt-to: the wall must reach below the base ring (its lowest hub is at ${lengthText(lowestHub(opts, radius, keepAbove, fraction), units)}), got "${opts.skirtTo}"`);
+        throw new UserError(`--keep-above: no face lies at or above ${lengthText(keepAbove ?? 0, units)} (the dome's top is at ${lengthText(radius, units)})`);
       }
       refuseToOverwrite(out, opts.force);
-      const cut = keepAbove !== undefined ? `faces with every corner at or above ${formatLength(keepAbove, units)}` : `${fractionText(fraction!)} of the sphere (faces centred at or above ${formatLength(radius * (1 - 2 * fraction!), units)})`;
-      const title = `${opts.frequency}V class I icosahedral geodesic, radius ${formatLength(radius, units)}, ${cut}, azimuth ${opts.azimuth}`;
+      const cut = keepAbove !== undefined ? `faces with every corner at or above ${lengthText(keepAbove, units)}` : `${fractionText(fraction!)} of the sphere (faces centred at or above ${lengthText(radius * (1 - 2 * fraction!), units)})`;
+      const title = `${opts.frequency}V class I icosahedral geodesic, radius ${lengthText(radius, units)}, ${cut}, azimuth ${opts.azimuth}`;
       writeOutputFile(
         out,
         geodesicObj(dome, 1 / METRES_PER_UNIT[units], [
-          `skyfold geodesic: ${title}${skirtTo !== undefined ? `, skirt to ${formatLength(skirtTo, units)}` : ''}`,
+          `skyfold geodesic: ${title}${skirtTo !== undefined ? `, skirt to ${lengthText(skirtTo, units)}` : ''}`,
           `units: ${units} (in a rig file: dome.mesh: ${basename(out)}, as a path from the rig file's folder, with dome.meshUnits: ${units} if the rig's units differ)`,
           'frame: origin at the centre of the springline circle, +z up, azimuth 0 toward +y, 90 toward +x',
         ]),
@@ -114,10 +114,10 @@ export function registerGeodesic(program: Command): void {
       }
       const lines = [
         `wrote ${out}: ${title}`,
-        `${dome.hubs} hubs, ${strutTotal} struts, ${dome.sphereTriangles} triangles; the base ring's lowest hub at ${formatLength(dome.baseHeight, units)}`,
-        ...(dome.skirtPanels > 0 ? [`skirt: ${dome.skirtPanels} wall panels (two triangles each in the OBJ) down to ${formatLength(skirtTo!, units)}`] : []),
+        `${dome.hubs} hubs, ${strutTotal} struts, ${dome.sphereTriangles} triangles; the base ring's lowest hub at ${lengthText(dome.baseHeight, units)}`,
+        ...(dome.skirtPanels > 0 ? [`skirt: ${dome.skirtPanels} wall panels (two triangles each in the OBJ) down to ${lengthText(skirtTo!, units)}`] : []),
         '',
-        table(['strut', 'chord factor', 'length', 'count'], dome.struts.map((s) => [s.label, fixed(s.chordFactor, 5), formatLength(s.length, units), String(s.count)])),
+        table(['strut', 'chord factor', 'length', 'count'], dome.struts.map((s) => [s.label, fixed(s.chordFactor, 5), lengthText(s.length, units), String(s.count)])),
         '',
         table(['triangle', 'count'], dome.triangleKinds.map((k) => [k.sides, String(k.count)])),
         '',

@@ -9,7 +9,7 @@ import { writeFileAtomic, writeOutputFile } from '../io/output-file.js';
 import { drawPlacementSweep } from '../pictures/placement-sweep.js';
 import { svgToPng } from '../pictures/render.js';
 import { UserError } from '../errors.js';
-import { printJson, table } from '../format.js';
+import { lengthText, printJson, table } from '../format.js';
 import { collect, parseNumberIn, parsePositiveInt } from '../options.js';
 import { VERSION } from '../version.js';
 import { setExitCode, writeOut } from '../io/run-context.js';
@@ -124,7 +124,7 @@ export function planSummary(p: PlanResult, units: Parameters<typeof formatLength
     pct(c.figures.efficiency),
     n(c.figures.median),
     pct(c.figures.pixelsLit),
-    c.figures.focusNear === null ? '-' : `${formatLength(c.figures.focusNear, units, 2)}-${formatLength(c.figures.focusFar!, units, 2)}`,
+    c.figures.focusNear === null ? '-' : `${lengthText(c.figures.focusNear, units, 2)}-${lengthText(c.figures.focusFar!, units, 2)}`,
     n(c.figures.score, 3),
     c.bestFor.join(', ') || '',
   ]);

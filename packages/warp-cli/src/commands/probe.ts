@@ -1,8 +1,8 @@
 /** `skyfold probe`: traces projector pixels to the dome and the fisheye. */
 import type { Command } from 'commander';
-import { formatLength, RAD, Tracer } from '@skyfold/warp-core';
+import { RAD, Tracer } from '@skyfold/warp-core';
 import { readRig } from '../io/document-file.js';
-import { fixed, printJson, table } from '../format.js';
+import { fixed, lengthText, printJson, table } from '../format.js';
 import { collect, parseNumberPair } from '../options.js';
 import { writeOut } from '../io/run-context.js';
 
@@ -34,7 +34,7 @@ export function registerProbe(program: Command): void {
               `${fixed(r.fisheye![0], 5)}, ${fixed(r.fisheye![1], 5)}`,
               fixed(r.azimuth!, 3),
               fixed(r.altitude!, 3),
-              r.domePoint!.map((c) => formatLength(c, rig.units)).join(', '),
+              r.domePoint!.map((c) => lengthText(c, rig.units)).join(', '),
             ]
           : [`${r.pixel[0]}, ${r.pixel[1]}`, r.hit, '-', '-', '-', '-'],
       );

@@ -12,7 +12,7 @@ import { readRig } from '../io/document-file.js';
 import { encodePng } from '../io/image-codec.js';
 import { writeFileAtomic } from '../io/output-file.js';
 import { UserError } from '../errors.js';
-import { printJson } from '../format.js';
+import { lengthText, printJson } from '../format.js';
 import { parsePositiveInt } from '../options.js';
 import { VERSION } from '../version.js';
 import { writeOut } from '../io/run-context.js';
@@ -21,7 +21,7 @@ import { writeOut } from '../io/run-context.js';
 export function reportSummary(f: ReportFigures): string[] {
   const pct = (x: number | null, d = 1) => (x === null ? '-' : `${(x * 100).toFixed(d)}%`);
   const n = (x: number | null, d = 2) => (x === null ? '-' : x.toFixed(d));
-  const L = (m: number | null) => (m === null ? '-' : formatLength(m, f.rig.units as never, 2));
+  const L = (m: number | null) => (m === null ? '-' : lengthText(m, f.rig.units as never, 2));
   const r = f.resolution;
   const lines = [
     `coverage        ${pct(f.coverage.fraction, 2)} of the content's dome lit (inverse check ${pct(f.coverage.fractionByInverse, 2)})${f.coverage.bodyShadow ? `; body shadow ${pct(f.coverage.bodyShadow, 2)}` : ''}`,
@@ -53,7 +53,7 @@ export function registerReport(program: Command): void {
     .action(async (rigPath: string, opts: { output: string; rays: number; json?: boolean }) => {
       const rig = readRig(rigPath);
       if (opts.rays < 1000 || opts.rays > 2_000_000) throw new UserError(`--rays: expected a number from 1000 to 2000000, got ${opts.rays}`);
-      const analysis = analyzeRig(rig, { vertices: opts.rays });
+      const analysis = analyzeRig(rig, { vertices: opts.rays, lengthText: (m, digits) => lengthText(m, rig.units, digits) });
       const pics = await reportPictures(analysis);
       const items: [string, RasterImage | Picture | null, string, string][] = [
         ['side-view.png', pics.side, 'Side view of the set-up', 'The dome, the floor and the eye-height bands, the mirror (its reflective cap drawn thick), the projector, and rays down the middle of the frame. Where the beam between lens and mirror runs at eye height it is drawn red.'],

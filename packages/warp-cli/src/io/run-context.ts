@@ -22,6 +22,8 @@ export interface RunIO {
 export interface RunContext extends RunIO {
   /** Set by a command that finished but not fully (1) or was stopped (130); 0 otherwise. */
   exitCode: number;
+  /** `--fractions`: lengths in feet and inches are shown to the nearest sixteenth of an inch, not as decimals. */
+  fractions?: boolean;
 }
 
 const storage = new AsyncLocalStorage<RunContext>();

@@ -4,7 +4,8 @@
  * opens in any browser with nothing else installed.
  */
 import { lengthLabel } from './scales.js';
-import { azAltFromDirection, describeArc, EYE_BANDS, formatLength, RAD, type LengthUnit, type ReportFigures, type Rig } from '@skyfold/warp-core';
+import { azAltFromDirection, describeArc, EYE_BANDS, RAD, type LengthUnit, type ReportFigures, type Rig } from '@skyfold/warp-core';
+import { lengthText } from '../format.js';
 
 export interface HtmlPicture {
   /** A data: URI, or the PNG file's path relative to the page. */
@@ -31,7 +32,7 @@ function sentence(s: string): string {
 
 /** A point in the rig's units: "(0 in, -6 ft 4.77 in, 5.91 in)". */
 function pointText(p: readonly number[], units: LengthUnit): string {
-  return `(${p.map((x) => formatLength(x, units, 2)).join(', ')})`;
+  return `(${p.map((x) => lengthText(x, units, 2)).join(', ')})`;
 }
 
 /** A direction as azimuth and elevation in degrees. */
@@ -43,7 +44,7 @@ function aimText(d: readonly number[]): string {
 /** The set-up the report judges, at the top of the page, in the rig's units. */
 export function setUpSection(rig: Rig): string {
   const u = rig.units;
-  const L = (m: number) => formatLength(m, u, 2);
+  const L = (m: number) => lengthText(m, u, 2);
   const e = escapeHtml;
   const { projector: p, content } = rig;
   const dome = rig.dome;
@@ -68,7 +69,7 @@ ${rows.map(([k, v]) => `<tr><th scope="row">${e(k)}</th><td>${e(v)}</td></tr>`).
 
 export function reportHtml(f: ReportFigures, pictures: readonly HtmlPicture[], meta: { generator: string; rigFile: string; rig?: Rig }): string {
   const units = f.rig.units as LengthUnit;
-  const L = (m: number | null) => (m === null ? '–' : formatLength(m, units, 2));
+  const L = (m: number | null) => (m === null ? '–' : lengthText(m, units, 2));
   const e = escapeHtml;
   const row = (k: string, v: string, note = '') => `<tr><th scope="row">${e(k)}</th><td>${e(v)}</td><td class="note">${e(note)}</td></tr>`;
   const card = (label: string, value: string, note: string) => `<div class="card"><div class="value">${e(value)}</div><div class="label">${e(label)}</div><div class="note">${e(note)}</div></div>`;

@@ -21,7 +21,12 @@ export interface ReportOptions {
   depth: number;
   /** The dome-direction pass (coverage the inverse way, per-azimuth altitudes). */
   directions: Partial<DirectionCoverageOptions>;
+  /** How the findings' text writes a length (metres, decimals); default formatLength in the rig's units. */
+  lengthText?: LengthText;
 }
+
+/** Writes a length for a finding's text: metres in, the rig's units out, `digits` decimals where decimals are used. */
+export type LengthText = (metres: number, digits: number) => string;
 
 export const REPORT_DEFAULTS: Readonly<ReportOptions> = { vertices: 120_000, depth: 3, directions: {} };
 
@@ -100,7 +105,7 @@ interface PlacementMeasure {
 }
 
 /** The projector-side part of the report: one coarse trace of the frame and its cells. */
-function measurePlacement(rig: Rig, o: Pick<ReportOptions, 'vertices' | 'depth'>): PlacementMeasure {
+function measurePlacement(rig: Rig, o: Pick<ReportOptions, 'vertices' | 'depth' | 'lengthText'>): PlacementMeasure {
   const tracer = new Tracer(rig);
   const sample = sampleFrame(tracer, { vertices: o.vertices });
   const cells = cellMeasures(sample, o.depth);
@@ -116,7 +121,7 @@ function measurePlacement(rig: Rig, o: Pick<ReportOptions, 'vertices' | 'depth'>
     pixels: pixelFigures(sample),
     resolution: resolutionFigures(sample, cells, arcmin, omegaC),
     brightness: brightnessFigures(cells),
-    focus: focusFigures(sample, vertexFromCells(sample, arcmin)),
+    focus: focusFigures(sample, vertexFromCells(sample, arcmin), o.lengthText),
   };
   return { tracer, sample, cells, arcmin, figures };
 }
@@ -130,7 +135,7 @@ export function analyzeRig(rig: Rig, options: Partial<ReportOptions> = {}): RigA
   const o = { ...REPORT_DEFAULTS, ...options };
   const { tracer, sample, cells, arcmin, figures: placed } = measurePlacement(rig, o);
   const dirs = coverageFromDirections(tracer, o.directions);
-  const safety = safetyFigures(sample);
+  const safety = safetyFigures(sample, o.lengthText);
   const figures: ReportFigures = {
     rig: { name: rig.name ?? null, units: rig.units },
     coverage: {

@@ -26,7 +26,7 @@ export interface FocusFigures {
 }
 
 /** `vertexArcmin` gives arcminutes per pixel near each vertex (NaN where unknown). */
-export function focusFigures(s: FrameSample, vertexArcmin: Float64Array): FocusFigures {
+export function focusFigures(s: FrameSample, vertexArcmin: Float64Array, lengthText?: (metres: number, digits: number) => string): FocusFigures {
   const rig = s.tracer.rig;
   const f = s.tracer.frame;
   const n = s.cols * s.rows;
@@ -45,7 +45,7 @@ export function focusFigures(s: FrameSample, vertexArcmin: Float64Array): FocusF
   const aperture = rig.projector.aperture ?? null;
   const minFocus = rig.projector.minFocus ?? null;
   const warnings: string[] = [];
-  const L = (m: number) => formatLength(m, rig.units);
+  const L = (m: number) => (lengthText ? lengthText(m, 3) : formatLength(m, rig.units));
   let blur: FocusFigures['blur'] = null;
   if (aperture !== null && Number.isFinite(best)) {
     const WT = f.width * f.throwRatio;

@@ -338,11 +338,11 @@ function floorUnknown(): { figures: SafetyFigures; zones: null } {
   return { figures: { floorKnown: false, lensHeight: null, mirrorHeight: null, bands: [], findings, cautions: STANDING_CAUTIONS, source: 'common practice' }, zones: null };
 }
 
-export function safetyFigures(s: FrameSample): { figures: SafetyFigures; zones: SafetyZones | null } {
+export function safetyFigures(s: FrameSample, lengthText?: (metres: number, digits: number) => string): { figures: SafetyFigures; zones: SafetyZones | null } {
   const rig = s.tracer.rig;
   const floor = rig.dome.floor;
   if (floor === undefined) return floorUnknown();
-  const L = (m: number) => formatLength(m, rig.units, 2);
+  const L = (m: number) => (lengthText ? lengthText(m, 2) : formatLength(m, rig.units, 2));
   const landings = strayLandings(s);
   const bands: BandZone[] = [];
   const findings: Finding[] = [];
