@@ -316,10 +316,13 @@ export class TriangleBvh {
     const fx = 3 - nx;
     const fy = 5 - ny;
     const fz = 7 - nz;
-    // the root's box; NaN from 0·∞ fails every comparison and so never narrows an interval
+    // the root's box; NaN from 0·∞ (a ray parallel to a slab, starting on its plane) fails every comparison
+    // and so never narrows an interval — except as the first value, which the x axis replaces by no bound
     {
       let tn = (bounds[nx] - ox) * ix;
       let tf = (bounds[fx] - ox) * ix;
+      if (tn !== tn) tn = -Infinity;
+      if (tf !== tf) tf = Infinity;
       const tyn = (bounds[ny] - oy) * iy;
       const tyf = (bounds[fy] - oy) * iy;
       if (tyn > tn) tn = tyn;
@@ -356,6 +359,8 @@ export class TriangleBvh {
         let oa = 6 * a;
         let tnA = (bounds[oa + nx] - ox) * ix;
         let tfA = (bounds[oa + fx] - ox) * ix;
+        if (tnA !== tnA) tnA = -Infinity;
+        if (tfA !== tfA) tfA = Infinity;
         let tn = (bounds[oa + ny] - oy) * iy;
         let tf = (bounds[oa + fy] - oy) * iy;
         if (tn > tnA) tnA = tn;
@@ -368,6 +373,8 @@ export class TriangleBvh {
         oa = 6 * b;
         let tnB = (bounds[oa + nx] - ox) * ix;
         let tfB = (bounds[oa + fx] - ox) * ix;
+        if (tnB !== tnB) tnB = -Infinity;
+        if (tfB !== tfB) tfB = Infinity;
         tn = (bounds[oa + ny] - oy) * iy;
         tf = (bounds[oa + fy] - oy) * iy;
         if (tn > tnB) tnB = tn;
