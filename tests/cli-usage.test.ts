@@ -50,7 +50,10 @@ describe('usage errors: one line in skyfold\'s voice, exit 2', () => {
   it('an enumerated option names the choices and what came', async () => {
     expect(usageLine(await run('warp', DEMO_RIG, 'x.png', '-o', 'out', '--filter', 'cubic'))).toBe('skyfold: --filter: expected one of nearest, bilinear, area, got "cubic"');
     expect(usageLine(await run('init', '--units', 'yd'))).toBe('skyfold: --units: expected one of m, ft, got "yd"');
-    expect(usageLine(await run('warp', DEMO_RIG, 'x.png', '-o', 'out', '--rotate', '45'))).toBe('skyfold: --rotate: expected one of 0, 90, 180, 270, got "45"');
+  });
+
+  it('--rotate takes any angle (issue 12), and refuses what is not one', async () => {
+    expect(usageLine(await run('warp', DEMO_RIG, 'x.png', '-o', 'out', '--rotate', 'left'))).toBe('skyfold: --rotate: expected an angle in degrees, got "left"');
   });
 
   it('numbers: positive integers, numbers in a range, sizes, directions', async () => {

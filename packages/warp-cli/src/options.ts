@@ -16,6 +16,13 @@ export function parsePositiveInt(text: string, what = 'a positive whole number')
   return n;
 }
 
+/** An angle in degrees, any finite number (a turn of more than a million degrees is a typing mistake). */
+export function parseAngle(text: string): number {
+  const n = Number(text);
+  if (text.trim() === '' || !Number.isFinite(n) || Math.abs(n) > 1e6) throw new InvalidArgumentError(`expected an angle in degrees, got "${text}"`);
+  return n;
+}
+
 /** A finite number from `lo` to `hi`. */
 export function parseNumberIn(lo: number, hi: number): (text: string) => number {
   return (text: string) => {

@@ -14,7 +14,7 @@ export { cloneRig } from './rig/clone.js';
 export { rigWarnings } from './rig/warnings.js';
 
 export { pixelToRay, rayToPixel, projectorFrame, type ProjectorFrame } from './optics/projector.js';
-export { directionToFisheye, fisheyeToDirection } from './optics/fisheye.js';
+export { contentToWorld, directionToFisheye, fisheyeToDirection, worldToContent } from './optics/fisheye.js';
 export type { FacetFigures } from './analysis/facets.js';
 export { DomeMesh, type DomeMeshSource, type TriangleSoup } from './optics/dome-mesh.js';
 export { MeshFileError, parseTriangleFile } from './optics/dome-mesh-files.js';

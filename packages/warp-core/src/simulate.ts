@@ -3,7 +3,7 @@
  * direction (the inverse trace), and how bright the light lands there. As a RemapMap from the warped
  * projector frame to an N × N dome master.
  */
-import { fisheyeToDirection } from './optics/fisheye.js';
+import { contentToWorld, fisheyeToDirection } from './optics/fisheye.js';
 import { azAltFromDirection } from './math.js';
 import { domeAreaOnGrid, referenceArea } from './mesh/grid-samples.js';
 import type { RemapMap } from './remap/types.js';
@@ -35,7 +35,7 @@ export function simulationMap(rig: Rig, size: number, options: SimulateOptions =
       const u = (i + 0.5) / size;
       const v = (j + 0.5) / size;
       if ((u - 0.5) ** 2 + (v - 0.5) ** 2 > 0.25) continue;
-      fisheyeToDirection(d, u, v, fov);
+      contentToWorld(d, fisheyeToDirection(d, u, v, fov), rig.content.azimuth ?? 0);
       const [az, alt] = azAltFromDirection(d);
       const r = locateDirection(tracer, az, alt, 1e-6);
       if (!r.pixel) continue;

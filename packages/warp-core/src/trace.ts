@@ -3,7 +3,7 @@
  * mirror sphere (cap test) → reflection → dome sphere → direction from the content's eye → fisheye.
  */
 import { rayDomeExit } from './optics/dome.js';
-import { directionToFisheye } from './optics/fisheye.js';
+import { directionToFisheye, worldToContent } from './optics/fisheye.js';
 import { azAltFromDirection, type Vec3 } from './math.js';
 import { capCosine, mirrorNormal, onCap, raySphereFirstHit, reflect } from './optics/mirror.js';
 import { pixelToRay, projectorFrame, type ProjectorFrame } from './optics/projector.js';
@@ -101,7 +101,7 @@ export class Tracer {
     w[1] /= wl;
     w[2] /= wl;
     const [azimuth, altitude] = azAltFromDirection(w);
-    const fisheye = directionToFisheye([0, 0], w, content.fov);
+    const fisheye = directionToFisheye([0, 0], worldToContent([0, 0, 0], w, content.azimuth ?? 0), content.fov);
     return {
       kind: D[2] >= 0 ? 'dome' : 'below-horizon',
       ray,
@@ -160,6 +160,9 @@ export class Tracer {
     const hintUv = new Float64Array(2);
     const [ex, ey, ez] = content.eye;
     const invFov = 1 / content.fov;
+    // content.azimuth: the fisheye is read in the content's frame, turned by −azimuth about +z (fisheye.ts worldToContent)
+    const turnC = Math.cos(content.azimuth ?? 0);
+    const turnS = Math.sin(content.azimuth ?? 0);
     const { u, v, kind, point, mirrorDistance } = out;
     const NaN_ = Number.NaN;
     for (let j = 0; j < ny; j++) {
@@ -253,8 +256,8 @@ export class Tracer {
         const theta = wz < 0.9 && wz > -0.9 ? Math.acos(wz) : Math.atan2(h, wz);
         if (h > 1e-300) {
           const q = theta * invFov / h;
-          u[k] = 0.5 + q * wx;
-          v[k] = 0.5 + q * wy;
+          u[k] = 0.5 + q * (wx * turnC - wy * turnS);
+          v[k] = 0.5 + q * (wy * turnC + wx * turnS);
         } else {
           u[k] = 0.5;
           v[k] = theta < 1 ? 0.5 : 0.5 + theta * invFov;

@@ -2,7 +2,7 @@
 import { Option, type Command } from 'commander';
 import { BAKE_DEFAULTS, MAX_PROJECTOR_SIDE, REMAP_DEFAULTS, type RemapFilter } from '@skyfold/warp-core';
 import { UserError } from '../errors.js';
-import { asOptionParser, parseNumberIn, parsePositiveInt, parseSize } from '../options.js';
+import { asOptionParser, parseAngle, parseNumberIn, parsePositiveInt, parseSize } from '../options.js';
 import { DEFAULT_MAX_PIXELS, FRAME_FORMATS, type FrameFormat } from '../io/image-codec.js';
 import { warpFrames } from '../warp/batch.js';
 import { parseFrameRange, parseShard } from '../warp/inputs.js';
@@ -28,7 +28,7 @@ interface WarpOptions {
   jobs?: number;
   flip?: boolean;
   nonSquare?: boolean;
-  rotate: string;
+  rotate: number;
   overwrite?: boolean;
   maxPixels: number;
   rawIn?: string;
@@ -60,7 +60,7 @@ export function registerWarp(program: Command): void {
     .option('--jobs <n>', 'worker threads (default: the core count)', (s) => parsePositiveInt(s))
     .option('--flip', 'the content arrives mirrored left-right')
     .option('--non-square', 'warp frames that are not square (a dome master is): u across the width, v down the height')
-    .addOption(new Option('--rotate <deg>', 'the content arrives turned: degrees clockwise to turn it back').choices(['0', '90', '180', '270']).default('0'))
+    .option('--rotate <deg>', 'the content arrives turned: degrees clockwise to turn it back, any angle (-30 turns it back counter-clockwise)', parseAngle, 0)
     .option('--overwrite', 'redo frames even when the run log says they are done')
     .option('--max-pixels <n>', 'refuse frames larger than this many pixels', (s) => parsePositiveInt(s), DEFAULT_MAX_PIXELS)
     .option('--raw-in <WxH[:fmt]>', 'read raw frames (rgb24 or rgb48le) from standard input and write raw warped frames to standard output')
@@ -81,7 +81,7 @@ export function registerWarp(program: Command): void {
     .action(async (source: string, inputs: string[], opts: WarpOptions, cmd: Command) => {
       const map = await loadMapSource(source, undefined, { projectorSize: opts.projectorSize });
       if (map.kind === 'rig' && opts.projectorSize) throw new UserError('--projector-size: only for a .pfm or .png mesh; a rig gives its own projector.resolution');
-      const rotate = Number(opts.rotate) as 0 | 90 | 180 | 270;
+      const rotate = ((opts.rotate % 360) + 360) % 360;
       const mapSettings: MapSettings = { brightness: opts.brightness, brightnessFloor: opts.brightnessFloor, feather: opts.feather, flip: opts.flip, rotate, ...(opts.nonSquare ? { nonSquare: true } : {}) };
       if (map.kind === 'mesh') {
         for (const o of ['brightnessFloor', 'feather'] as const) {

@@ -3,7 +3,7 @@
  * right): a per-cell figure (resolution, brightness) coloured per pixel and embedded as a raster,
  * with the altitude rings, azimuth spokes, labels and colour scale drawn as vectors.
  */
-import { azAltFromDirection, DEG, domePointSeen, fisheyeToDirection, locateDirection, segmentHitsBody, type RigAnalysis, type Vec3 } from '@skyfold/warp-core';
+import { azAltFromDirection, contentToWorld, DEG, domePointSeen, fisheyeToDirection, locateDirection, segmentHitsBody, type RigAnalysis, type Vec3 } from '@skyfold/warp-core';
 import { dusk, PALETTE, type Rgb8 } from './colormap.js';
 import { placeLabel, placeLabelIfClear, type Anchor } from './label-placer.js';
 import { rasterDataUri } from './render.js';
@@ -34,7 +34,7 @@ export function fisheyeLookup(a: RigAnalysis, size: number): FisheyeLookup {
         cell[k] = -2;
         continue;
       }
-      fisheyeToDirection(w, u, v, rig.content.fov);
+      contentToWorld(w, fisheyeToDirection(w, u, v, rig.content.fov), rig.content.azimuth ?? 0);
       const seen = domePointSeen(tracer, w);
       if (seen === null || seen[2] < 0) {
         cell[k] = -3;

@@ -2,6 +2,7 @@
  * The exact per-pixel map for batch warping: every projector pixel centre traced, with its
  * brightness factor and mask, as a RemapMap in dome-master pixel units.
  */
+import { DEG } from '../math.js';
 import type { Rig } from '../rig/model.js';
 import type { RemapMap } from '../remap/types.js';
 import { BAKE_DEFAULTS, interpolateCell, type BakeOptions } from './bake.js';
@@ -16,8 +17,8 @@ export type MapOptions = Pick<BakeOptions, 'brightness' | 'brightnessFloor' | 'f
 export interface SourceOrientation {
   /** Mirror the frame left-right before use. */
   flip?: boolean;
-  /** Turn the frame clockwise by this many degrees (0, 90, 180, 270) before use. */
-  rotate?: 0 | 90 | 180 | 270;
+  /** Turn the frame clockwise (as seen, v down) by this many degrees before use: any angle. */
+  rotate?: number;
 }
 
 /**
@@ -28,7 +29,10 @@ export interface SourceOrientation {
 export function orientUv(uv: [number, number], o: SourceOrientation): [number, number] {
   let [u, v] = uv;
   if (o.flip) u = 1 - u;
-  switch (o.rotate ?? 0) {
+  const turn = ((((o.rotate ?? 0) % 360) + 360) % 360);
+  switch (turn) {
+    case 0:
+      break;
     case 90: // delivered frame turned clockwise by 90° gives ours: ours (u, v) came from (v, 1 − u)
       [u, v] = [v, 1 - u];
       break;
@@ -38,6 +42,16 @@ export function orientUv(uv: [number, number], o: SourceOrientation): [number, n
     case 270:
       [u, v] = [1 - v, u];
       break;
+    default: {
+      // ours = the delivered frame turned clockwise by θ about the centre, (x, y) → (x cos θ − y sin θ, x sin θ + y cos θ)
+      // with y down; so the delivered point is ours turned back: (x cos θ + y sin θ, −x sin θ + y cos θ)
+      const c = Math.cos(turn * DEG);
+      const s = Math.sin(turn * DEG);
+      const x = u - 0.5;
+      const y = v - 0.5;
+      u = 0.5 + x * c + y * s;
+      v = 0.5 - x * s + y * c;
+    }
   }
   uv[0] = u;
   uv[1] = v;

@@ -44,6 +44,29 @@ export function fisheyeToDirection(out: Vec3, u: number, v: number, fov: number)
   return out;
 }
 
+/**
+ * A world direction → the content's own frame, for content whose front is shown at dome azimuth
+ * `azimuth` (radians, DESIGN.md "Fisheye convention", `content.azimuth`): a turn about +z by −azimuth,
+ * so the world azimuth az becomes the content azimuth az − azimuth. `out` may be `d`.
+ */
+export function worldToContent(out: Vec3, d: ReadonlyVec3, azimuth: number): Vec3 {
+  if (azimuth === 0) return out === d ? out : ((out[0] = d[0]), (out[1] = d[1]), (out[2] = d[2]), out);
+  const c = Math.cos(azimuth);
+  const s = Math.sin(azimuth);
+  const x = d[0];
+  const y = d[1];
+  // azimuth is measured from +y toward +x: (x, y) = h·(sin az, cos az)
+  out[0] = x * c - y * s;
+  out[1] = y * c + x * s;
+  out[2] = d[2];
+  return out;
+}
+
+/** The inverse of worldToContent: a direction in the content's frame → the world. `out` may be `d`. */
+export function contentToWorld(out: Vec3, d: ReadonlyVec3, azimuth: number): Vec3 {
+  return worldToContent(out, d, -azimuth);
+}
+
 /** Angle from the zenith, radians, of normalized fisheye (u, v). */
 export function fisheyeZenithAngle(u: number, v: number, fov: number): number {
   return Math.hypot(u - 0.5, v - 0.5) * fov;

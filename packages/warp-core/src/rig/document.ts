@@ -25,7 +25,7 @@ export const RIG_FIELDS: Readonly<Record<string, readonly string[]>> = {
   'mirror.cap': ['width', 'depth'],
   projector: ['position', 'lookAt', 'roll', 'up', 'resolution', 'throwRatio', 'lensShift', 'body', 'aperture', 'minFocus'],
   'projector.body': ['width', 'length', 'height'],
-  content: ['fov', 'eye'],
+  content: ['fov', 'eye', 'azimuth'],
   room: ['mirror', 'lensHeight', 'audience', 'leastLit', 'maxShadow'],
   'room.mirror': ['along', 'within'],
   'room.audience': ['center', 'radius', 'eyes'],
@@ -347,6 +347,9 @@ export function rigFromDocument(input: unknown, options: RigDocumentOptions = {}
   const fovDeg = content.fov === undefined ? 180 : r.number(content.fov, 'content.fov', (x) => x > 0 && x <= 360, 'an angle in (0, 360] degrees');
   if (fovDeg < MIN_FOV) throw new RigError('content.fov', `expected a field of view of at least ${MIN_FOV} degrees, got ${showValue(content.fov)}`);
   const eye = content.eye === undefined ? ([0, 0, 0] as Vec3) : r.point(content.eye, 'content.eye');
+  const azimuthDeg = content.azimuth === undefined ? 0 : r.number(content.azimuth, 'content.azimuth', (x) => Math.abs(x) <= 1e6, 'an angle in degrees (the dome azimuth where the content\'s front is shown)');
+  // any angle, kept in [0, 360): -90 and 270 are the same turn
+  const azimuthNorm = ((azimuthDeg % 360) + 360) % 360;
 
   let name: string | undefined;
   if (doc.name !== undefined) {
@@ -362,7 +365,7 @@ export function rigFromDocument(input: unknown, options: RigDocumentOptions = {}
     dome: { radius: domeRadius, floor, mesh },
     mirror: { center, radius: mirrorRadius, axis, capAngle },
     projector: { position, lookAt, roll, up, resolution: [resV[0], resV[1]], throwRatio, lensShift, body, aperture, minFocus },
-    content: { fov: fovDeg * DEG, eye },
+    content: { fov: fovDeg * DEG, eye, ...(azimuthNorm !== 0 ? { azimuth: azimuthNorm * DEG } : {}) },
     ...(room ? { room } : {}),
   };
   validateRigGeometry(rig);
@@ -448,7 +451,7 @@ export function rigToDocument(rig: Rig, units: LengthUnit = rig.units, digits = 
   if (p.aperture !== undefined) proj.aperture = L(p.aperture);
   if (p.minFocus !== undefined) proj.minFocus = L(p.minFocus);
   doc.projector = proj;
-  doc.content = { fov: round(rig.content.fov * RAD, 9), eye: P(rig.content.eye) };
+  doc.content = { fov: round(rig.content.fov * RAD, 9), eye: P(rig.content.eye), ...(rig.content.azimuth ? { azimuth: round(rig.content.azimuth * RAD, 9) } : {}) };
   if (rig.room) doc.room = roomToDocument(rig.room, L);
   return doc;
 }

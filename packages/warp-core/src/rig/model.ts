@@ -57,6 +57,11 @@ export interface ContentModel {
   fov: number;
   /** Point the content is mapped for. */
   eye: Vec3;
+  /**
+   * Dome azimuth (radians, clockwise seen from below: 0 front, π/2 right) at which the content's front —
+   * the bottom of the dome master — is shown; 0 or absent: at the dome's front.
+   */
+  azimuth?: number;
 }
 
 /** Where the planner may put the mirror's centre. */
