@@ -134,12 +134,12 @@ function drawSideRays(pic: SvgPicture, f: SideFrame, a: RigAnalysis): void {
     const hit = tracer.pixel(W / 2, y);
     pixelToRay(ray, tracer.frame, W / 2, y);
     if (hit.kind === 'mirror-miss') {
-      const l = landing(P, ray, dome.radius, dome.floor);
+      const l = landing(P, ray, dome.radius, dome.floor, dome.mesh);
       pic.line(X(P), Y(P[2]), X(l.point), Y(l.point[2]), { stroke: PALETTE.mirrorMiss, width: 1, opacity: 0.5, dash: [4, 4] });
       continue;
     }
     const M = hit.mirrorPoint;
-    const l = landing(M, hit.reflected, dome.radius, dome.floor);
+    const l = landing(M, hit.reflected, dome.radius, dome.floor, dome.mesh);
     const inContent = hit.kind === 'dome' && (hit.fisheye[0] - 0.5) ** 2 + (hit.fisheye[1] - 0.5) ** 2 <= 0.25;
     const col = hit.kind !== 'dome' ? PALETTE.belowHorizon : inContent ? PALETTE.litDark : PALETTE.outsideContent;
     pic.line(X(M), Y(M[2]), X(l.point), Y(l.point[2]), { stroke: col, width: 1.2, opacity: 0.8 });

@@ -130,8 +130,10 @@ export function reflectedThrough(s: FrameSample, Q: Vec3): boolean {
   if (px === null || !insideFrame(f, px[0], px[1])) return false;
   const ql = Math.hypot(Q[0] - X[0], Q[1] - X[1], Q[2] - X[2]);
   const d: Vec3 = [(Q[0] - X[0]) / ql, (Q[1] - X[1]) / ql, (Q[2] - X[2]) / ql];
-  const D = landing(X, d, dome.radius, dome.floor).point;
-  if (D[2] < 0) return false;
+  const l = landing(X, d, dome.radius, dome.floor, dome.mesh);
+  const D = l.point;
+  // light through an opening of an as-built dome is no picture: the mesh blacks it out
+  if (D[2] < 0 || l.throughOpening) return false;
   const w: Vec3 = [D[0] - content.eye[0], D[1] - content.eye[1], D[2] - content.eye[2]];
   const wl = Math.hypot(w[0], w[1], w[2]);
   if (Math.acos(Math.max(-1, Math.min(1, w[2] / wl))) > content.fov / 2) return false;

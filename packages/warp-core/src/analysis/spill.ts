@@ -68,13 +68,13 @@ export function strayLandings(s: FrameSample): (({ from: Vec3 } & ReturnType<typ
   for (let k = 0; k < s.kind.length; k++) {
     if (s.kind[k] === HitKind.MirrorMiss) {
       const d: Vec3 = [s.ray[3 * k], s.ray[3 * k + 1], s.ray[3 * k + 2]];
-      out.push({ from: [P[0], P[1], P[2]], ...landing(P, d, rig.dome.radius, rig.dome.floor) });
+      out.push({ from: [P[0], P[1], P[2]], ...landing(P, d, rig.dome.radius, rig.dome.floor, rig.dome.mesh) });
     } else if (s.kind[k] === HitKind.BelowHorizon) {
       const X: Vec3 = [s.mirrorPoint[3 * k], s.mirrorPoint[3 * k + 1], s.mirrorPoint[3 * k + 2]];
       const D = [s.point[3 * k], s.point[3 * k + 1], s.point[3 * k + 2]];
       const dl = Math.hypot(D[0] - X[0], D[1] - X[1], D[2] - X[2]);
       const d: Vec3 = [(D[0] - X[0]) / dl, (D[1] - X[1]) / dl, (D[2] - X[2]) / dl];
-      out.push({ from: X, ...landing(X, d, rig.dome.radius, rig.dome.floor) });
+      out.push({ from: X, ...landing(X, d, rig.dome.radius, rig.dome.floor, rig.dome.mesh) });
     } else out.push(null);
   }
   return out;
