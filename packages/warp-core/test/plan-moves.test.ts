@@ -1,19 +1,11 @@
 /** Moves in the room's words: the change from one rig to another as an operator makes it. */
 import { describe, expect, it } from 'vitest';
+import { planTestRig } from './plan-rigs.js';
 import { deg, type Rig } from '../src/rig/model.js';
 import { cloneRig } from '../src/rig/clone.js';
 import { describeMoves } from '../src/placement/moves.js';
 
-function rig(): Rig {
-  const s = Math.SQRT1_2;
-  return {
-    units: 'm',
-    dome: { radius: 2.5, floor: 0.5 },
-    mirror: { center: [0, -1.95, 0.15], radius: 0.3, axis: [0, s, s], capAngle: deg(90) },
-    projector: { position: [0, -0.75, 0.1], lookAt: [0, -1.95, 0.1], roll: 0, resolution: [1920, 1200], throwRatio: 1.6, lensShift: [0, 0] },
-    content: { fov: deg(180), eye: [0, 0, 0] },
-  };
-}
+const rig = (): Rig => planTestRig({ lookAtZ: 0.1, resolution: [1920, 1200] });
 
 describe('moves', () => {
   it('say toward the mirror, to the side as seen from behind the projector, and up or down', () => {

@@ -1,21 +1,11 @@
 /** The plan's objective: four separate figures, documented weightings, and a small non-dominated set of candidates. */
 import { describe, expect, it } from 'vitest';
-import { deg, validateRigGeometry, type Rig } from '../src/rig/model.js';
+import { planTestRig } from './plan-rigs.js';
+import type { Rig } from '../src/rig/model.js';
 import { dominates, planRig } from '../src/placement/plan.js';
 import { OBJECTIVE_WEIGHTS, objectiveScore, PLAN_MEASURES, PLAN_OBJECTIVES } from '../src/placement/scoring.js';
 
-function poor(): Rig {
-  const s = Math.SQRT1_2;
-  const rig: Rig = {
-    units: 'm',
-    dome: { radius: 2.5, floor: 0.5 },
-    mirror: { center: [0, -1.95, 0.15], radius: 0.3, axis: [0, s, s], capAngle: deg(90) },
-    projector: { position: [0, -1.3, 0.1], lookAt: [0, -1.95, 0.15], roll: 0, resolution: [192, 120], throwRatio: 1.6, lensShift: [0, 0] },
-    content: { fov: deg(180), eye: [0, 0, 0] },
-  };
-  validateRigGeometry(rig);
-  return rig;
-}
+const poor = (): Rig => planTestRig({ position: [0, -1.3, 0.1], lookAtZ: 0.15, resolution: [192, 120] });
 
 describe('objectives', () => {
   it('weight the four figures, each weighting summing to 1', () => {

@@ -1,20 +1,10 @@
 /** `planRig`'s optional progress callback: steps only go forward, end at the total, and change no answer. */
 import { describe, expect, it } from 'vitest';
-import { deg, validateRigGeometry, type Rig } from '../src/rig/model.js';
+import { planTestRig } from './plan-rigs.js';
+import type { Rig } from '../src/rig/model.js';
 import { planRig } from '../src/placement/plan.js';
 
-function rig(): Rig {
-  const s = Math.SQRT1_2;
-  const g: Rig = {
-    units: 'm',
-    dome: { radius: 2.5, floor: 0.5 },
-    mirror: { center: [0, -1.95, 0.15], radius: 0.3, axis: [0, s, s], capAngle: deg(90) },
-    projector: { position: [0, -1.3, 0.1], lookAt: [0, -1.95, 0.25], roll: 0, resolution: [1920, 1200], throwRatio: 1.6, lensShift: [0, 0] },
-    content: { fov: deg(180), eye: [0, 0, 0] },
-  };
-  validateRigGeometry(g);
-  return g;
-}
+const rig = (): Rig => planTestRig({ position: [0, -1.3, 0.1], resolution: [1920, 1200] });
 
 describe('plan progress', () => {
   it('reports steps done of a fixed total, never backwards, last at the total; the answer is the same without it', () => {

@@ -4,22 +4,14 @@
  * search, with a fifth of the grid's evaluations, comes within 1% of the grid's best.
  */
 import { describe, expect, it } from 'vitest';
-import { deg, type Rig } from '../src/rig/model.js';
+import { planTestRig } from './plan-rigs.js';
+import type { Rig } from '../src/rig/model.js';
 import { cloneRig } from '../src/rig/clone.js';
 import { differentialEvolution } from '../src/placement/differential-evolution.js';
 import { betterPlacement, evaluatePlacement, NOMINAL_BODY, type Evaluation, type ScoringSettings } from '../src/placement/scoring.js';
 import { resolveRoom } from '../src/placement/room.js';
 
-function demo(): Rig {
-  const s = Math.SQRT1_2;
-  return {
-    units: 'm',
-    dome: { radius: 2.5, floor: 0.5 },
-    mirror: { center: [0, -1.95, 0.15], radius: 0.3, axis: [0, s, s], capAngle: deg(90) },
-    projector: { position: [0, -0.75, 0.1], lookAt: [0, -1.95, 0.25], roll: 0, resolution: [160, 100], throwRatio: 1.6, lensShift: [0, 0] },
-    content: { fov: deg(180), eye: [0, 0, 0] },
-  };
-}
+const demo = (): Rig => planTestRig();
 
 describe('differential evolution', () => {
   it('comes within 1% of a brute-force grid on the projector distance and height', () => {

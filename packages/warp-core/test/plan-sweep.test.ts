@@ -1,20 +1,12 @@
 /** The placement sweep: a grid of projector distances and heights, each scored as the planner scores a candidate. */
 import { describe, expect, it } from 'vitest';
-import { deg, type Rig } from '../src/rig/model.js';
+import { planTestRig } from './plan-rigs.js';
+import type { Rig } from '../src/rig/model.js';
 import { sweepPlacement } from '../src/placement/sweep.js';
 import { OPEN_ROOM, resolveRoom } from '../src/placement/room.js';
 import { NOMINAL_BODY } from '../src/placement/scoring.js';
 
-function demo(): Rig {
-  const s = Math.SQRT1_2;
-  return {
-    units: 'm',
-    dome: { radius: 2.5, floor: 0.5 },
-    mirror: { center: [0, -1.95, 0.15], radius: 0.3, axis: [0, s, s], capAngle: deg(90) },
-    projector: { position: [0, -0.75, 0.1], lookAt: [0, -1.95, 0.25], roll: 0, resolution: [192, 120], throwRatio: 1.6, lensShift: [0, 0] },
-    content: { fov: deg(180), eye: [0, 0, 0] },
-  };
-}
+const demo = (): Rig => planTestRig({ resolution: [192, 120] });
 
 describe('placement sweep', () => {
   it('spans the distances to the wall and the room\'s lens heights, with the current placement where it stands', () => {
