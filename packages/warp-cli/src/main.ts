@@ -11,6 +11,7 @@ import { registerPattern } from './commands/pattern.js';
 import { registerReport } from './commands/report.js';
 import { registerPlan } from './commands/plan.js';
 import { registerGeodesic } from './commands/geodesic.js';
+import { registerLive } from './commands/live.js';
 import { EXIT_BAD_INPUT, EXIT_INTERNAL, EXIT_OK, UserError } from './errors.js';
 import { runContext, withRunContext, writeErr, writeOut, type RunIO } from './io/run-context.js';
 import { VERSION } from './version.js';
@@ -44,6 +45,7 @@ export function buildProgram(): Command {
   registerReport(program);
   registerPlan(program);
   registerGeodesic(program);
+  registerLive(program);
   for (const c of program.commands) c.exitOverride();
   return program;
 }
