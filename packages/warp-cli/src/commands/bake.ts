@@ -1,6 +1,6 @@
 /** `skyfold bake`: the warp mesh, with its measured accuracy, in open formats. */
 import { Option, type Command } from 'commander';
-import { ADAPTIVE_DEFAULTS, BAKE_DEFAULTS, bakeAdaptive, bakeMesh, type AdaptiveBake, type TriangleAccuracy, fillLayoutFromRig, pixelSamples, RigError, rigToDocument, type BakeOptions, type BakeResult, type LengthUnit } from '@skyfold/warp-core';
+import { ADAPTIVE_DEFAULTS, BAKE_DEFAULTS, bakeAdaptive, bakeMesh, type AdaptiveBake, type TriangleAccuracy, fillLayoutFromRig, pixelSamples, RigError, rigToDocument, type BakeOptions, type BakeResult, type LengthUnit, type Rig } from '@skyfold/warp-core';
 import { readRig } from '../io/document-file.js';
 import { writeOutputFile } from '../io/output-file.js';
 import { UserError } from '../errors.js';
@@ -66,6 +66,54 @@ export function adaptiveSummary(a: AdaptiveBake, smallestCell: number): Record<s
   return { smallestCell, ...figures(a.accuracy), uniform: figures(a.uniform) };
 }
 
+/** One file to write: its path and format. */
+export interface BakeTarget {
+  path: string;
+  format: MeshFormat;
+}
+
+/**
+ * Bakes `rig` and writes each target, as `skyfold bake` does (the live page's bake runs this too);
+ * `rigPath` names the rig in errors.
+ */
+export async function bakeToFiles(
+  rig: Rig,
+  rigPath: string,
+  targets: readonly BakeTarget[],
+  opts: Omit<BakeCliOptions, 'output' | 'format' | 'json'>,
+): Promise<{ result: BakeResult; adaptive?: AdaptiveBake; pixels?: ReturnType<typeof pixelSamples> }> {
+  const settings = {
+    grid: opts.grid,
+    tolerance: opts.tolerance,
+    masterSize: opts.masterSize,
+    brightness: opts.brightness,
+    brightnessFloor: opts.brightnessFloor,
+    feather: opts.feather,
+  };
+  const meta = { generator: `skyfold ${VERSION}`, rig: rigToDocument(rig, 'm'), bake: settings as Record<string, unknown> };
+  let result: BakeResult;
+  try {
+    result = bakeMesh(rig, settings, meta);
+  } catch (e) {
+    if (e instanceof RigError) throw new UserError(`${rigPath}: nothing to bake: ${e.message}`);
+    throw e;
+  }
+  meta.bake = { ...settings, grid: [result.mesh.cols, result.mesh.rows], accuracy: result.accuracy, edge: result.edge, areaMax: result.areaMax };
+  let adaptive: AdaptiveBake | undefined;
+  if (opts.adaptive) {
+    adaptive = bakeAdaptive(rig, result, { smallestCell: opts.smallestCell }, { ...meta, bake: { ...meta.bake, adaptive: { smallestCell: opts.smallestCell } } });
+    adaptive.mesh.meta = { ...adaptive.mesh.meta, bake: { ...(meta.bake as object), adaptive: adaptiveSummary(adaptive, opts.smallestCell) } };
+  }
+  const perPixel = opts.alphaResolution === 'full' && targets.some((t) => t.format === 'mpcdi' || t.format === 'png');
+  const pixels = perPixel ? pixelSamples(rig, settings) : undefined;
+  // MPCDI's warp grid is in the standard's fill layout, traced at its own sample positions
+  const warp = targets.some((t) => t.format === 'mpcdi') ? fillLayoutFromRig(rig, result.mesh.cols, result.mesh.rows) : undefined;
+  for (const t of targets) {
+    writeOutputFile(t.path, await encodeMesh(result.mesh, t.format, { pixels, mpcdi: { warp }, dome: rig.dome.mesh, adaptive: TRIANGLE_FORMATS.includes(t.format) ? adaptive?.mesh : undefined }));
+  }
+  return { result, adaptive, pixels };
+}
+
 export function registerBake(program: Command): void {
   program
     .command('bake')
@@ -102,35 +150,7 @@ export function registerBake(program: Command): void {
         throw new UserError('--adaptive: only .glb and .obj can carry an adaptive mesh (the other formats are grids by definition); give a .glb or .obj output');
       }
       if (!opts.adaptive && opts.smallestCell !== ADAPTIVE_DEFAULTS.smallestCell) throw new UserError('--smallest-cell: only with --adaptive');
-      const settings = {
-        grid: opts.grid,
-        tolerance: opts.tolerance,
-        masterSize: opts.masterSize,
-        brightness: opts.brightness,
-        brightnessFloor: opts.brightnessFloor,
-        feather: opts.feather,
-      };
-      const meta = { generator: `skyfold ${VERSION}`, rig: rigToDocument(rig, 'm'), bake: settings as Record<string, unknown> };
-      let result: BakeResult;
-      try {
-        result = bakeMesh(rig, settings, meta);
-      } catch (e) {
-        if (e instanceof RigError) throw new UserError(`${rigPath}: nothing to bake: ${e.message}`);
-        throw e;
-      }
-      meta.bake = { ...settings, grid: [result.mesh.cols, result.mesh.rows], accuracy: result.accuracy, edge: result.edge, areaMax: result.areaMax };
-      let adaptive: AdaptiveBake | undefined;
-      if (opts.adaptive) {
-        adaptive = bakeAdaptive(rig, result, { smallestCell: opts.smallestCell }, { ...meta, bake: { ...meta.bake, adaptive: { smallestCell: opts.smallestCell } } });
-        adaptive.mesh.meta = { ...adaptive.mesh.meta, bake: { ...(meta.bake as object), adaptive: adaptiveSummary(adaptive, opts.smallestCell) } };
-      }
-      const perPixel = opts.alphaResolution === 'full' && targets.some((t) => t.format === 'mpcdi' || t.format === 'png');
-      const pixels = perPixel ? pixelSamples(rig, settings) : undefined;
-      // MPCDI's warp grid is in the standard's fill layout, traced at its own sample positions
-      const warp = targets.some((t) => t.format === 'mpcdi') ? fillLayoutFromRig(rig, result.mesh.cols, result.mesh.rows) : undefined;
-      for (const t of targets) {
-        writeOutputFile(t.path, await encodeMesh(result.mesh, t.format, { pixels, mpcdi: { warp }, dome: rig.dome.mesh, adaptive: TRIANGLE_FORMATS.includes(t.format) ? adaptive?.mesh : undefined }));
-      }
+      const { result, adaptive, pixels } = await bakeToFiles(rig, rigPath, targets, opts);
       const summary = {
         ...bakeSummary(result, targets.map((t) => t.path), rig.units),
         alphaResolution: opts.alphaResolution,

@@ -5,7 +5,7 @@
  */
 import { createServer, type IncomingMessage, type Server, type ServerResponse } from 'node:http';
 import { createReadStream, fstatSync, openSync, closeSync } from 'node:fs';
-import { basename, resolve } from 'node:path';
+import { basename, dirname, resolve } from 'node:path';
 import type { Socket } from 'node:net';
 import type { Rig } from '@skyfold/warp-core';
 import { UserError } from '../errors.js';
@@ -13,21 +13,8 @@ import { loadRig, type LoadedRig } from '../io/document-file.js';
 import { rigDocumentText } from '../io/rig-edit.js';
 import { livePageAssets } from './assets.js';
 import { collectMedia, contentType, type MediaItem } from './media.js';
+import { LiveRequestError, liveActions, type LiveActions } from './actions.js';
 import { allowedHosts, hostForUrl, isLoopback, isWildcard, newToken, refusal } from './security.js';
-
-/** A request that cannot be served: its status and a one-line reason (sent as `{ error }`). */
-export class LiveRequestError extends Error {
-  constructor(readonly status: number, message: string) {
-    super(message);
-    this.name = 'LiveRequestError';
-  }
-}
-
-/** What the page's POST requests do (save.ts): each takes the parsed body and returns the JSON answer. */
-export interface LiveActions {
-  save(body: unknown): Promise<unknown>;
-  bake(body: unknown): Promise<unknown>;
-}
 
 export interface LiveServerOptions {
   /** The rig file (or a .glb baked by skyfold), relative to `cwd`. */
@@ -316,6 +303,7 @@ export async function startLiveServer(options: LiveServerOptions): Promise<LiveS
     token: newToken(),
     domeMesh: domeMeshBytes(loaded.rig),
   };
+  state.actions = liveActions({ loaded, rigPath, rigText: state.rigText, folder: dirname(rigPath) });
   const bind = options.host ?? '127.0.0.1';
   let hosts: ReadonlySet<string> = new Set();
   const sockets = new Set<Socket>();
