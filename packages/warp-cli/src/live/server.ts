@@ -309,7 +309,8 @@ export async function startLiveServer(options: LiveServerOptions): Promise<LiveS
   const sockets = new Set<Socket>();
   const server: Server = createServer((req, res) => {
     handle(state, hosts, req, res).catch((e: unknown) => {
-      if (e instanceof LiveRequestError) sendError(res, e.status, e.message);
+      // after a 413 the rest of the body is not worth reading: the connection closes once the answer is sent
+      if (e instanceof LiveRequestError) sendError(res, e.status, e.message, e.status === 413 ? { Connection: 'close' } : {});
       else if (e instanceof UserError) sendError(res, 400, e.message);
       // a defect: one line, never the stack
       else sendError(res, 500, `internal error: ${(e as Error)?.message ?? String(e)}`);
