@@ -4,7 +4,7 @@ import { request } from 'node:http';
 import { join } from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { loadRig, startLiveServer, type LiveServer } from '@skyfold/warp-cli';
-import { demoRigText, skyfold, tempDir } from './support.js';
+import { demoRigText, FIXTURES, skyfold, tempDir } from './support.js';
 
 function post(s: LiveServer, path: string, body: string | Buffer, type = 'application/json'): Promise<{ status: number; json: any }> {
   return new Promise((ok, fail) => {
@@ -131,5 +131,26 @@ describe('skyfold live: bake', () => {
     writeFileSync(nudged, readFileSync(rigPath, 'utf8').replace('throwRatio: 1.6', 'throwRatio: 1.7'));
     expect((await skyfold(['bake', nudged, '-o', join(dir, 'nudged-cli.csv')])).code).toBe(0);
     expect(readFileSync(join(dir, 'nudged.csv'), 'utf8')).toBe(readFileSync(join(dir, 'nudged-cli.csv'), 'utf8'));
+  });
+});
+
+describe('skyfold live: save on an as-built dome', () => {
+  it('keeps the feet-and-inches strings and the dome.mesh line; the saved rig reads back with its triangles', async () => {
+    const folder = tempDir('live-save-mesh');
+    for (const f of ['school-dome-rig.yaml', 'school-dome.obj']) writeFileSync(join(folder, f), readFileSync(join(FIXTURES, f)));
+    const s = await startLiveServer({ rig: join(folder, 'school-dome-rig.yaml') });
+    try {
+      const { rig, domeMesh } = await session(s);
+      // one inch higher (1 in = 0.0254 m exactly, NIST SP 811 B.8)
+      rig.projector.position[2] += 0.0254;
+      expect(await post(s, '/api/save', JSON.stringify({ rig }))).toEqual({ status: 200, json: { file: 'school-dome-rig.live.yaml' } });
+      const text = readFileSync(join(folder, 'school-dome-rig.live.yaml'), 'utf8');
+      expect(text).toContain('  position: ["0 in", "-2 ft 8 in", "5 in"]   # the lens, on a low cart near the centre');
+      expect(text).toContain('  mesh: school-dome.obj  # the dome as built (triangles, in feet, beside this file)');
+      const back = loadRig(join(folder, 'school-dome-rig.live.yaml')).rig;
+      expect(back.dome.mesh?.triangleCount).toBe(domeMesh.triangles);
+    } finally {
+      await s.close();
+    }
   });
 });
