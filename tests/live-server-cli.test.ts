@@ -1,7 +1,9 @@
 /** `skyfold live` as a user runs it: the printed address, Ctrl-C, and the command line's errors. */
+import { chmodSync, existsSync, readFileSync, writeFileSync } from 'node:fs';
 import { get } from 'node:http';
+import { join } from 'node:path';
 import { describe, expect, it } from 'vitest';
-import { DEMO_RIG, skyfold, spawnSkyfold, whileRunning } from './support.js';
+import { DEMO_RIG, skyfold, spawnSkyfold, tempDir, whileRunning } from './support.js';
 
 function fetchJson(url: string): Promise<{ status: number; body: any }> {
   return new Promise((ok, fail) => {
@@ -54,5 +56,24 @@ describe('skyfold live: the command line', () => {
     expect(help.stdout).toContain('Usage: skyfold live [options] <rig> [media...]');
     expect(help.stdout).toContain('--host <address>');
     expect(help.stdout).toContain('skyfold live rig.yaml show/ trailer.mp4 --open');
+  });
+});
+
+describe('skyfold live --open --json', () => {
+  const bin = tempDir('live-open');
+  it.runIf(process.platform === 'linux')('prints the address as JSON and hands it to xdg-open', async () => {
+    const seen = join(bin, 'opened.txt');
+    writeFileSync(join(bin, 'xdg-open'), `#!/bin/sh\nprintf '%s' "$1" > "${seen}.part" && mv "${seen}.part" "${seen}"\n`);
+    chmodSync(join(bin, 'xdg-open'), 0o755);
+    const { child, done } = spawnSkyfold(['live', DEMO_RIG, '--open', '--json'], { env: { PATH: `${bin}:${process.env.PATH}` } });
+    let out = '';
+    child.stdout!.on('data', (c) => (out += c));
+    expect(await whileRunning(child, () => out.includes('\n') && existsSync(seen))).toBe(true);
+    const printed = JSON.parse(out);
+    expect(Object.keys(printed)).toEqual(['url', 'port', 'token']);
+    expect(printed.url).toBe(`http://127.0.0.1:${printed.port}/?t=${printed.token}`);
+    expect(readFileSync(seen, 'utf8')).toBe(printed.url);
+    child.kill('SIGINT');
+    expect((await done).code).toBe(0);
   });
 });
