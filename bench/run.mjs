@@ -14,7 +14,7 @@
 // only, leaving the README alone.
 import { spawn, spawnSync } from 'node:child_process';
 import { existsSync, mkdirSync, readFileSync, statSync, writeFileSync } from 'node:fs';
-import { totalmem } from 'node:os';
+import { loadavg, totalmem } from 'node:os';
 import { join } from 'node:path';
 import { fileURLToPath } from 'node:url';
 import sharp from 'sharp';
@@ -28,7 +28,9 @@ const PYTHON = '/usr/bin/python3';
 const SOURCE = 4096;
 const FRAME_SEED = 1;
 const quick = process.argv.includes('--quick');
-const ROUNDS = quick ? 2 : 5;
+const roundsArg = process.argv.indexOf('--rounds');
+const ROUNDS = roundsArg > 0 ? Number(process.argv[roundsArg + 1]) : quick ? 2 : 5;
+if (!(Number.isInteger(ROUNDS) && ROUNDS >= 1)) throw new Error('bench: --rounds takes a whole number ≥ 1');
 /** Timed runs per process: the whole-frame cases take a second each, the kernels a fraction. */
 const repsOf = (name) => (quick ? 2 : name.startsWith('frame-') ? 3 : 5);
 
@@ -80,7 +82,11 @@ function measure(name, work) {
   const [cmd, args] = name.startsWith('opencv-')
     ? [PYTHON, [join(ROOT, 'bench/opencv-remap.py'), name.slice(7), work, String(repsOf(name))]]
     : [process.execPath, [join(ROOT, 'bench/measure.mjs'), name, work, String(repsOf(name))]];
-  return new Promise((resolve) => {
+  // the machine's 1, 5 and 15 minute load averages (os.loadavg) just before and just after the process
+  const before = loadavg();
+  const withLoad = (res) => ({ ...res, load: { before, after: loadavg() } });
+  return new Promise((resolve0) => {
+    const resolve = (res) => resolve0(withLoad(res));
     let out = '';
     let err = '';
     let child;
@@ -109,6 +115,7 @@ const summary = (values) => ({ median: median(values), min: Math.min(...values),
 
 const CASES = ['trace', 'trace-3v', 'trace-32v', 'trace-3v-skirt', 'map', 'bilinear', 'bilinear-float', 'bilinear-gain', 'area', 'opencv-float', 'opencv-fixed', 'frame-io', 'frame-bilinear', 'frame-area', 'encode-1', 'encode-6'];
 
+const started = performance.now();
 const m = machine();
 console.log(`skyfold bench on ${m.cpu}, nproc ${m.nproc}, Node ${m.node}${quick ? ' (quick)' : ''}`);
 const work = join(ROOT, 'bench-out/work');
@@ -118,10 +125,13 @@ console.log(`inputs: demo rig map ${inputs.map.width}x${inputs.map.height} onto 
 const perRound = Object.fromEntries(CASES.map((c) => [c, []]));
 const skipped = {};
 const extra = {};
+/** Per case, one { before, after } load average record (1, 5, 15 min) per measurement, in round order. */
+const loadOf = Object.fromEntries(CASES.map((c) => [c, []]));
 for (let r = 0; r < ROUNDS; r++) {
   const order = CASES.map((_, i) => CASES[(i + r) % CASES.length]);
   for (const name of order) {
     const res = await measure(name, work);
+    loadOf[name].push(res.load);
     if (res.skipped || res.failed) {
       skipped[name] = res.skipped ?? res.failed;
       if (res.failed) console.error(`bench: ${name} failed: ${res.failed}`);
@@ -138,30 +148,35 @@ const ms = (name) => perRound[name].map((res) => median(res.times));
 const have = (...names) => names.every((n) => perRound[n].length === ROUNDS);
 const ratio = (a, b) => ms(a).map((v, i) => v / ms(b)[i]);
 const rows = [];
-const row = (id, what, unit, values, aim) => rows.push({ id, what, unit, ...summary(values), ...(aim ? { aim } : {}) });
+/** The 1-minute load averages before and after the measurements a row's figures come from. */
+const loadFor = (cases) => {
+  const l = cases.flatMap((c) => loadOf[c].flatMap((x) => [x.before[0], x.after[0]]));
+  return { median: median(l), min: Math.min(...l), max: Math.max(...l) };
+};
+const row = (id, what, unit, values, aim, cases = [id]) => rows.push({ id, what, unit, ...summary(values), ...(aim ? { aim } : {}), cases, load1m: loadFor(cases) });
 const { width: W, height: H } = inputs.map;
 if (have('trace')) row('trace', `whole-frame trace, ${W} × ${H}, one core`, 'Mrays/s', ms('trace').map((t) => (W * H) / t / 1000), '≥ 10');
 // on a dome mesh, as a share of the sphere's rays per second (sphere time / mesh time, within each round)
-if (have('trace', 'trace-3v')) row('trace-3v', 'trace on a `dome.mesh`: 3V 5/8 geodesic, 105 triangles, / the sphere', '×', ratio('trace', 'trace-3v'), '≥ 0.5');
-if (have('trace', 'trace-32v')) row('trace-32v', 'trace on a `dome.mesh`: 32V hemisphere on a skirt, 10,560 triangles, / the sphere', '×', ratio('trace', 'trace-32v'), '≥ 0.33');
-if (have('trace', 'trace-3v-skirt')) row('trace-3v-skirt', 'trace on a `dome.mesh` that is not convex (3V 5/8 on a skirt, 135 triangles) / the sphere', '×', ratio('trace', 'trace-3v-skirt'));
+if (have('trace', 'trace-3v')) row('trace-3v', 'trace on a `dome.mesh`: 3V 5/8 geodesic, 105 triangles, / the sphere', '×', ratio('trace', 'trace-3v'), '≥ 0.5', ['trace', 'trace-3v']);
+if (have('trace', 'trace-32v')) row('trace-32v', 'trace on a `dome.mesh`: 32V hemisphere on a skirt, 10,560 triangles, / the sphere', '×', ratio('trace', 'trace-32v'), '≥ 0.33', ['trace', 'trace-32v']);
+if (have('trace', 'trace-3v-skirt')) row('trace-3v-skirt', 'trace on a `dome.mesh` that is not convex (3V 5/8 on a skirt, 135 triangles) / the sphere', '×', ratio('trace', 'trace-3v-skirt'), undefined, ['trace', 'trace-3v-skirt']);
 if (have('map')) {
-  row('map-time', `per-pixel map from the rig onto ${SOURCE}² (trace, mask, brightness), one core`, 'ms', ms('map'), '');
-  row('map-memory', 'peak memory of the process building that map', 'MiB', perRound.map.map((r) => r.maxRssMiB), '≤ 250');
+  row('map-time', `per-pixel map from the rig onto ${SOURCE}² (trace, mask, brightness), one core`, 'ms', ms('map'), '', ['map']);
+  row('map-memory', 'peak memory of the process building that map', 'MiB', perRound.map.map((r) => r.maxRssMiB), '≤ 250', ['map']);
 }
 if (have('bilinear')) row('bilinear', `bilinear remap (fixed point, map prepared once), ${SOURCE}² RGB8 → ${W} × ${H}, mask-only map, one thread`, 'ms', ms('bilinear'));
-if (have('bilinear', 'bilinear-float')) row('fixed-vs-float', 'bilinear in fixed point / the float kernel', '×', ratio('bilinear', 'bilinear-float'));
-if (have('bilinear', 'opencv-float')) row('vs-opencv-float', 'bilinear / OpenCV cv2.remap INTER_LINEAR, float maps', '×', ratio('bilinear', 'opencv-float'), '');
-if (have('bilinear', 'opencv-fixed')) row('vs-opencv-fixed', 'bilinear / OpenCV cv2.remap INTER_LINEAR, fixed-point maps (cv2.convertMaps)', '×', ratio('bilinear', 'opencv-fixed'), '≤ 1.5');
+if (have('bilinear', 'bilinear-float')) row('fixed-vs-float', 'bilinear in fixed point / the float kernel', '×', ratio('bilinear', 'bilinear-float'), undefined, ['bilinear', 'bilinear-float']);
+if (have('bilinear', 'opencv-float')) row('vs-opencv-float', 'bilinear / OpenCV cv2.remap INTER_LINEAR, float maps', '×', ratio('bilinear', 'opencv-float'), '', ['bilinear', 'opencv-float']);
+if (have('bilinear', 'opencv-fixed')) row('vs-opencv-fixed', 'bilinear / OpenCV cv2.remap INTER_LINEAR, fixed-point maps (cv2.convertMaps)', '×', ratio('bilinear', 'opencv-fixed'), '≤ 1.5', ['bilinear', 'opencv-fixed']);
 if (have('opencv-fixed')) row('opencv-fixed', 'OpenCV cv2.remap, fixed-point maps, one thread', 'ms', ms('opencv-fixed'));
-if (have('bilinear-gain', 'bilinear')) row('gain-cost', 'bilinear with the rig\'s brightness gain (linear light) / mask only', '×', ratio('bilinear-gain', 'bilinear'));
-if (have('area', 'bilinear-gain')) row('area-vs-bilinear', '`area` remap (default) / bilinear, both with gain', '×', ratio('area', 'bilinear-gain'), '≤ 2.5');
+if (have('bilinear-gain', 'bilinear')) row('gain-cost', 'bilinear with the rig\'s brightness gain (linear light) / mask only', '×', ratio('bilinear-gain', 'bilinear'), undefined, ['bilinear-gain', 'bilinear']);
+if (have('area', 'bilinear-gain')) row('area-vs-bilinear', '`area` remap (default) / bilinear, both with gain', '×', ratio('area', 'bilinear-gain'), '≤ 2.5', ['area', 'bilinear-gain']);
 if (have('frame-io')) row('frame-io', `decode the ${SOURCE}² PNG + encode the ${W} × ${H} PNG (level 6), no warp`, 'ms', ms('frame-io'));
-if (have('frame-bilinear', 'frame-io')) row('frame-bilinear', 'whole frame with `bilinear` / decode + encode alone', '×', ratio('frame-bilinear', 'frame-io'), '≤ 1.2');
-if (have('frame-area', 'frame-io')) row('frame-area', 'whole frame with `area` / decode + encode alone', '×', ratio('frame-area', 'frame-io'), '');
+if (have('frame-bilinear', 'frame-io')) row('frame-bilinear', 'whole frame with `bilinear` / decode + encode alone', '×', ratio('frame-bilinear', 'frame-io'), '≤ 1.2', ['frame-bilinear', 'frame-io']);
+if (have('frame-area', 'frame-io')) row('frame-area', 'whole frame with `area` / decode + encode alone', '×', ratio('frame-area', 'frame-io'), '', ['frame-area', 'frame-io']);
 if (have('encode-1', 'encode-6')) {
-  row('encode-speed', `PNG encode of the ${W} × ${H} frame: zlib level 6 (default) time / level 1 time`, '×', ratio('encode-6', 'encode-1'));
-  row('encode-size', 'PNG size: level 1 / level 6', '×', perRound['encode-1'].map((r, i) => r.bytes / perRound['encode-6'][i].bytes));
+  row('encode-speed', `PNG encode of the ${W} × ${H} frame: zlib level 6 (default) time / level 1 time`, '×', ratio('encode-6', 'encode-1'), undefined, ['encode-6', 'encode-1']);
+  row('encode-size', 'PNG size: level 1 / level 6', '×', perRound['encode-1'].map((r, i) => r.bytes / perRound['encode-6'][i].bytes), undefined, ['encode-1', 'encode-6']);
 }
 
 const results = {
@@ -169,9 +184,11 @@ const results = {
   date: new Date().toISOString(),
   quick,
   machine: { ...m, ...(extra.opencv ? { opencv: extra.opencv } : {}) },
-  method: { rounds: ROUNDS, repsPerProcess: repsOf('bilinear'), repsPerFrameProcess: repsOf('frame-io'), processPerMeasurement: true, interleaved: true },
+  method: { rounds: ROUNDS, repsPerProcess: repsOf('bilinear'), repsPerFrameProcess: repsOf('frame-io'), processPerMeasurement: true, interleaved: true, loadAverage: 'os.loadavg() (1, 5, 15 min) just before and just after each measurement', minutes: Number(((performance.now() - started) / 60000).toFixed(1)) },
   inputs: { rig: 'fixtures/demo-rig.yaml', ...inputs.map, frame: `bench/show-frame.mjs seed ${FRAME_SEED}`, framePngMiB: Number(inputs.pngMiB.toFixed(1)) },
   rows,
+  // every measurement's load averages, per case in round order: [{ before: [1m, 5m, 15m], after }]
+  load: loadOf,
   skipped,
   ...(extra.agreement ? { agreement: extra.agreement } : {}),
 };

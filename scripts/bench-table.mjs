@@ -44,6 +44,19 @@ export function checkResults(r) {
     if (row.min !== s[0] || row.max !== s[s.length - 1] || Math.abs(row.median - mid) > 1e-9 * Math.abs(mid)) fail(`${at} median/min/max do not summarise its values`);
   }
   if (typeof r.skipped !== 'object' || r.skipped === null) fail('skipped missing');
+  if (me.loadAverage !== undefined) {
+    // the load averages around every measurement (os.loadavg), and per row those of its measurements
+    if (typeof r.load !== 'object' || r.load === null) fail('load missing though method.loadAverage is set');
+    const triple = (t) => Array.isArray(t) && t.length === 3 && t.every((v) => Number.isFinite(v) && v >= 0);
+    for (const [name, list] of Object.entries(r.load)) {
+      if (!Array.isArray(list) || !list.every((x) => x && triple(x.before) && triple(x.after))) fail(`load.${name} is not a list of { before, after } load averages`);
+    }
+    for (const [i, row] of r.rows.entries()) {
+      const l = row.load1m;
+      if (!l || ![l.median, l.min, l.max].every(Number.isFinite) || !(l.min <= l.median && l.median <= l.max)) fail(`rows[${i}].load1m missing`);
+      if (!Array.isArray(row.cases) || !row.cases.every((c) => Array.isArray(r.load[c]))) fail(`rows[${i}].cases do not name measured cases`);
+    }
+  }
   return r;
 }
 
@@ -65,9 +78,15 @@ export function renderTable(r) {
       `median over rounds, range min–max. Inputs: the map of \`${r.inputs.rig}\` (${r.inputs.width} × ${r.inputs.height}, ` +
       `${(r.inputs.litFraction * 100).toFixed(0)}% of pixels lit) onto a ${r.inputs.source}² show-like frame (${r.inputs.frame}, PNG ${r.inputs.framePngMiB} MiB).`,
     '',
-    '| what | median | range | aim |',
-    '|---|---|---|---|',
-    ...r.rows.map((row) => `| ${row.what} | ${fmt(row.median, row.unit)} | ${fmt(row.min, row.unit)} – ${fmt(row.max, row.unit)} | ${row.aim ? `${row.aim}${row.unit === '×' ? '×' : ` ${row.unit}`}` : '—'} |`),
+    ...(r.method.loadAverage
+      ? [`Load: the 1-minute load average (\`os.loadavg\`) just before and just after each measurement; per row the median (min–max) over the measurements behind it. The bench took ${r.method.minutes} min.`, '']
+      : []),
+    '| what | median | range | aim | load (1 min) |',
+    '|---|---|---|---|---|',
+    ...r.rows.map(
+      (row) =>
+        `| ${row.what} | ${fmt(row.median, row.unit)} | ${fmt(row.min, row.unit)} – ${fmt(row.max, row.unit)} | ${row.aim ? `${row.aim}${row.unit === '×' ? '×' : ` ${row.unit}`}` : '—'} | ${row.load1m ? `${row.load1m.median.toFixed(2)} (${row.load1m.min.toFixed(2)}–${row.load1m.max.toFixed(2)})` : '—'} |`,
+    ),
   ];
   const skipped = Object.entries(r.skipped);
   if (skipped.length) lines.push('', ...skipped.map(([k, why]) => `Not measured: ${k} (${why}).`));

@@ -43,6 +43,19 @@ describe('bench-out/results.json', () => {
     expect(ids).toContain('bilinear');
     expect(ids).toContain('frame-bilinear');
   });
+
+  it('shows the trace on the dome meshes beside the sphere', () => {
+    const ids = results.rows.map((r: { id: string }) => r.id);
+    for (const id of ['trace', 'trace-3v', 'trace-32v', 'trace-3v-skirt']) expect(ids).toContain(id);
+    for (const id of ['trace-3v', 'trace-32v', 'trace-3v-skirt']) expect(tableIn(readme)).toContain(results.rows.find((r: { id: string }) => r.id === id).what);
+  });
+
+  it('records the load average around every measurement, and the table shows it per row', () => {
+    expect(results.method.loadAverage).toBeTruthy();
+    for (const list of Object.values(results.load) as { before: number[]; after: number[] }[][]) expect(list.length).toBe(results.method.rounds);
+    expect(tableIn(readme)).toContain('| load (1 min) |');
+    for (const row of results.rows) expect(row.load1m.max).toBeGreaterThanOrEqual(row.load1m.min);
+  });
 });
 
 describe('checkResults', () => {
@@ -72,6 +85,33 @@ describe('checkResults', () => {
     const r = sample();
     r.method.processPerMeasurement = false;
     expect(() => checkResults(r)).toThrow('bench results: method is not one process per measurement, interleaved');
+  });
+});
+
+describe('load averages', () => {
+  const withLoad = () => {
+    const r: any = sample();
+    r.method.loadAverage = 'os.loadavg() before and after each measurement';
+    r.method.minutes = 3.5;
+    r.load = { a: [0, 1, 2].map((i) => ({ before: [0.5 + i, 1, 1], after: [0.75 + i, 1, 1] })) };
+    r.rows[0].cases = ['a'];
+    r.rows[0].load1m = { median: 1.625, min: 0.5, max: 2.75 };
+    return r;
+  };
+
+  it('are shown per row with the time the bench took', () => {
+    const t = renderTable(withLoad());
+    expect(t).toContain('| a over b | 2.50× | 2.25× – 3.13× | ≤ 1.5× | 1.63 (0.50–2.75) |');
+    expect(t).toContain('The bench took 3.5 min.');
+  });
+
+  it('must be there for every row once the method says they were taken', () => {
+    const r = withLoad();
+    delete r.rows[0].load1m;
+    expect(() => checkResults(r)).toThrow('bench results: rows[0].load1m missing');
+    const q = withLoad();
+    q.load.a[1].after = [1];
+    expect(() => checkResults(q)).toThrow('bench results: load.a is not a list of { before, after } load averages');
   });
 });
 
