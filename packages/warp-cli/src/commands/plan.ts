@@ -14,6 +14,7 @@ import { collect, parseNumberIn, parsePositiveInt } from '../options.js';
 import { VERSION } from '../version.js';
 import { setExitCode, writeOut } from '../io/run-context.js';
 import { wordNotice, wordRigError } from '../messages.js';
+import { WorkProgress } from '../io/work-progress.js';
 
 interface PlanCliOptions {
   vary?: string[];
@@ -174,11 +175,15 @@ export function registerPlan(program: Command): void {
       if (opts.evaluations < 20) throw new UserError(`--evaluations: expected at least 20, got ${opts.evaluations}`);
       if (opts.rays < 1000 || opts.rays > 2_000_000) throw new UserError(`--rays: expected a number from 1000 to 2000000, got ${opts.rays}`);
       let result: PlanResult;
+      const progress = new WorkProgress('plan', !opts.json);
       try {
-        result = planRig(rig, { vary: opts.vary ?? [...PLAN_DEFAULTS.vary], objective: opts.objective, seed: opts.seed, evaluations: opts.evaluations, reportVertices: opts.rays, room: roomOptions(opts, rig.units) });
+        const onProgress = (done: number, total: number) => progress.update(done, total);
+        result = planRig(rig, { vary: opts.vary ?? [...PLAN_DEFAULTS.vary], objective: opts.objective, seed: opts.seed, evaluations: opts.evaluations, reportVertices: opts.rays, room: roomOptions(opts, rig.units), onProgress });
       } catch (e) {
         if (e instanceof RigError) throw new UserError(wordRigError(e));
         throw e;
+      } finally {
+        progress.finish();
       }
       const out = opts.output ?? defaultOutput(rigPath);
       // a candidate is written only when it beats the current rig (or the current rig breaks the room)

@@ -1,5 +1,5 @@
 /**
- * Progress of one long computation (simulate's inverse trace) on a terminal: a bar redrawn in place at
+ * Progress of one long computation (simulate's inverse trace, plan's search) on a terminal: a bar redrawn in place at
  * most ten times a second, and nothing when standard error is not a terminal, in CI or with --json.
  */
 import { runContext } from './run-context.js';
