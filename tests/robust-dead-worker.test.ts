@@ -2,7 +2,8 @@
  * Issue 10: a warp worker that dies (an uncaught exception such as running out of memory, an exit)
  * through the CLI: its frame is reported failed, a new worker takes its place, the other frames are
  * warped, and the run ends with the usual summary and exit 1 (DESIGN.md: the work ran, some failed).
- * The real frame worker runs, wrapped by one that dies on frames named for it; the wrapper reaches the
+ * A frame deleted mid-run (the input gone when its run-log line is written) fails that frame alone.
+ * The real frame worker runs, wrapped by one that dies on (or deletes) frames named for it; the wrapper reaches the
  * program through the run's `frameWorker`, which no option or environment variable can set.
  */
 import { existsSync, mkdirSync, mkdtempSync, readdirSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
@@ -28,11 +29,21 @@ beforeAll(async () => {
   // the real worker, its message listener wrapped so that a doomed frame never reaches it
   writeFileSync(
     file,
-    `import { parentPort } from 'node:worker_threads';
+    `import { unlinkSync } from 'node:fs';
+import { parentPort } from 'node:worker_threads';
 const on = parentPort.on.bind(parentPort);
+// a frame named "gone" is deleted once warped, before its outcome goes back: an input removed mid-run
+const inputs = new Map();
+const post = parentPort.postMessage.bind(parentPort);
+parentPort.postMessage = (outcome) => {
+  const input = inputs.get(outcome.id);
+  if (input && input.includes('gone')) unlinkSync(input);
+  post(outcome);
+};
 parentPort.on = (event, listener) => on(event, event !== 'message' ? listener : (job) => {
   if (job.input.includes('crash')) throw new Error('JS heap out of memory (pretend)');
   if (job.input.includes('vanish')) process.exit(9);
+  inputs.set(job.id, job.input);
   listener(job);
 });
 await import(${JSON.stringify(REAL_WORKER.href)});
@@ -47,10 +58,10 @@ await import(${JSON.stringify(REAL_WORKER.href)});
 });
 afterAll(() => rmSync(dir, { recursive: true, force: true }));
 
-async function warp(out: string, extra: string[]): Promise<{ code: number; stdout: string; stderr: string }> {
+async function warp(out: string, extra: string[], show = join(dir, 'show')): Promise<{ code: number; stdout: string; stderr: string }> {
   let stdout = '';
   let stderr = '';
-  const code = await run(['warp', rig, join(dir, 'show'), '-o', out, '--jobs', '2', ...extra], {
+  const code = await run(['warp', rig, show, '-o', out, '--jobs', '2', ...extra], {
     stdin: Readable.from([]),
     stdout: new Writable({ write: (c: Buffer, _e, done) => ((stdout += c.toString()), done()) }),
     stderr: new Writable({ write: (c: Buffer, _e, done) => ((stderr += c.toString()), done()) }),
@@ -89,5 +100,22 @@ describe('a warp worker that dies, through the CLI', () => {
     expect(existsSync(join(out, 'b-crash.png'))).toBe(false);
     const again = await warp(out, ['--json']);
     expect(JSON.parse(again.stdout)).toMatchObject({ total: 6, skipped: 4, failed: 2 });
+  });
+
+  it('a frame deleted while the run goes on (--jobs 2) fails, named, and the run ends with its summary', async () => {
+    const show = join(dir, 'show-mid');
+    mkdirSync(show);
+    for (const [i, n] of ['p.png', 'q-gone.png', 'r.png'].entries()) {
+      await sharp(Buffer.alloc(64 * 64 * 3, 60 + 40 * i), { raw: { width: 64, height: 64, channels: 3 } }).png().toFile(join(show, n));
+    }
+    const out = join(dir, 'out-mid');
+    const r = await warp(out, ['--json'], show);
+    expect(r.code, r.stderr).toBe(1);
+    expect(r.stderr).not.toMatch(/internal error/);
+    const summary = JSON.parse(r.stdout);
+    expect(summary, JSON.stringify(summary.failures)).toMatchObject({ total: 3, done: 2, failed: 1 });
+    expect(summary.failures[0].input).toMatch(/q-gone\.png$/);
+    expect(summary.failures[0].reason).toMatch(/run log could not record it: .*ENOENT/);
+    expect(readdirSync(out).filter((n) => n.includes('partial'))).toEqual([]);
   });
 });
