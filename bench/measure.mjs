@@ -10,7 +10,7 @@ import { readFileSync } from 'node:fs';
 import { join } from 'node:path';
 import sharp from 'sharp';
 import { parse } from 'yaml';
-import { rigFromDocument, pixelMapFromRig, prepareBilinear, remap, createImageLike, geodesicDome, Tracer } from '@skyfold/warp-core';
+import { rigFromDocument, pixelMapFromRig, prepareArea, prepareBilinear, remap, createImageLike, geodesicDome, Tracer } from '@skyfold/warp-core';
 
 const [name, dir, repsText] = process.argv.slice(2);
 const reps = Number(repsText ?? 5);
@@ -72,7 +72,9 @@ const CASES = {
   bilinear: () => remapCase('mask', 'bilinear', true),
   'bilinear-float': () => remapCase('mask', 'bilinear', false),
   'bilinear-gain': () => remapCase('gain', 'bilinear', true),
-  area: () => remapCase('gain', 'area'),
+  // area with its footprints planned once (untimed, as skyfold warp does once per run), and without
+  area: () => remapCase('gain', 'area', true),
+  'area-unplanned': () => remapCase('gain', 'area', false),
   // a whole frame: decode the 4096² PNG, warp, encode the 1920×1200 PNG; and decode + encode alone
   'frame-io': () => frameCase(null),
   'frame-bilinear': () => frameCase('bilinear'),
@@ -106,8 +108,9 @@ function remapCase(gainKind, filter, fixed) {
   const src = loadSource();
   const map = loadMap(gainKind);
   const out = createImageLike(src, map.width, map.height);
-  const prepared = fixed ? prepareBilinear(map, src.width, src.height, 3) : undefined;
-  return () => remap(src, map, { filter, out, prepared });
+  const prepared = fixed && filter === 'bilinear' ? prepareBilinear(map, src.width, src.height, 3) : undefined;
+  const areaPlan = fixed && filter === 'area' ? prepareArea(map, src.width, src.height) : undefined;
+  return () => remap(src, map, { filter, out, prepared, areaPlan });
 }
 
 function frameCase(filter) {
@@ -123,11 +126,13 @@ function frameCase(filter) {
     };
   }
   let prepared;
+  let areaPlan;
   return async () => {
     const src = await decode(path);
     out ??= createImageLike(src, map.width, map.height);
     if (filter === 'bilinear') prepared ??= prepareBilinear(map, src.width, src.height, 3);
-    remap(src, map, { filter, out, prepared });
+    if (filter === 'area') areaPlan ??= prepareArea(map, src.width, src.height);
+    remap(src, map, { filter, out, prepared, areaPlan });
     return encode(out);
   };
 }

@@ -113,7 +113,7 @@ const median = (a) => {
 };
 const summary = (values) => ({ median: median(values), min: Math.min(...values), max: Math.max(...values), values });
 
-const CASES = ['trace', 'trace-3v', 'trace-32v', 'trace-3v-skirt', 'map', 'bilinear', 'bilinear-float', 'bilinear-gain', 'area', 'opencv-float', 'opencv-fixed', 'frame-io', 'frame-bilinear', 'frame-area', 'encode-1', 'encode-6'];
+const CASES = ['trace', 'trace-3v', 'trace-32v', 'trace-3v-skirt', 'map', 'bilinear', 'bilinear-float', 'bilinear-gain', 'area', 'area-unplanned', 'opencv-float', 'opencv-fixed', 'frame-io', 'frame-bilinear', 'frame-area', 'encode-1', 'encode-6'];
 
 const started = performance.now();
 const m = machine();
@@ -170,7 +170,8 @@ if (have('bilinear', 'opencv-float')) row('vs-opencv-float', 'bilinear / OpenCV 
 if (have('bilinear', 'opencv-fixed')) row('vs-opencv-fixed', 'bilinear / OpenCV cv2.remap INTER_LINEAR, fixed-point maps (cv2.convertMaps)', '×', ratio('bilinear', 'opencv-fixed'), '≤ 1.5', ['bilinear', 'opencv-fixed']);
 if (have('opencv-fixed')) row('opencv-fixed', 'OpenCV cv2.remap, fixed-point maps, one thread', 'ms', ms('opencv-fixed'));
 if (have('bilinear-gain', 'bilinear')) row('gain-cost', 'bilinear with the rig\'s brightness gain (linear light) / mask only', '×', ratio('bilinear-gain', 'bilinear'), undefined, ['bilinear-gain', 'bilinear']);
-if (have('area', 'bilinear-gain')) row('area-vs-bilinear', '`area` remap (default) / bilinear, both with gain', '×', ratio('area', 'bilinear-gain'), '≤ 2.5', ['area', 'bilinear-gain']);
+if (have('area', 'bilinear-gain')) row('area-vs-bilinear', '`area` remap (default; footprints planned once per map) / bilinear, both with gain', '×', ratio('area', 'bilinear-gain'), '≤ 2.5', ['area', 'bilinear-gain']);
+if (have('area', 'area-unplanned')) row('area-plan', '`area` with footprints planned once / worked out every frame', '×', ratio('area', 'area-unplanned'), undefined, ['area', 'area-unplanned']);
 if (have('frame-io')) row('frame-io', `decode the ${SOURCE}² PNG + encode the ${W} × ${H} PNG (level 6), no warp`, 'ms', ms('frame-io'));
 if (have('frame-bilinear', 'frame-io')) row('frame-bilinear', 'whole frame with `bilinear` / decode + encode alone', '×', ratio('frame-bilinear', 'frame-io'), '≤ 1.2', ['frame-bilinear', 'frame-io']);
 if (have('frame-area', 'frame-io')) row('frame-area', 'whole frame with `area` / decode + encode alone', '×', ratio('frame-area', 'frame-io'), '', ['frame-area', 'frame-io']);

@@ -27,7 +27,8 @@ export { BAKE_DEFAULTS, bakeMesh, checkShowsContent, type BakeOptions, type Bake
 export { pixelMapFromFillLayout, pixelMapFromMesh, pixelMapFromRig, pixelMapFromTriangles, type AlphaMap, type SourceOrientation } from './mesh/pixel-map.js';
 export { pixelSamples, type PixelSampleOptions, type PixelSamples } from './mesh/pixel-samples.js';
 export { fillLayoutFromMesh, fillLayoutFromRig, type FillLayoutGrid } from './mesh/fill-layout.js';
-export { REMAP_DEFAULTS, createImageLike, remap } from './remap/remap.js';
+export { REMAP_DEFAULTS, createImageLike, prepareArea, remap } from './remap/remap.js';
+export type { PreparedArea } from './remap/area.js';
 export { fixedBilinearApplies, prepareBilinear, type PreparedBilinear } from './remap/bilinear-fixed.js';
 export type { ImageBuffer, RemapFilter, RemapMap } from './remap/types.js';
 export { simulationMap, type SimulateOptions } from './simulate.js';

@@ -12,6 +12,7 @@ import { UserError } from '../errors.js';
 import { runContext, setExitCode, writeErr } from '../io/run-context.js';
 import type { MapSettings, MapSource } from '../warp/map-source.js';
 import { Progress } from '../warp/progress.js';
+import { areaPlanFor } from '../warp/job.js';
 import { stopOnSignals, type StopSignal } from '../warp/stop-signal.js';
 import { hostTag, partialTag } from '../warp/output-folder.js';
 import { writeFileAtomic } from '../io/output-file.js';
@@ -219,6 +220,7 @@ async function warpSegments(job: SegmentJob, signal: StopSignal, onFrames: (n: n
       throw sourceError(`${info.path}: got ${n} of ${info.frameCount} frames: frames ${n + 1}-${info.frameCount} did not decode (a damaged stream?); nothing was written`);
     }
   };
+  const planScratch = {};
   try {
     for (const k of todo) {
       const [a, b] = segmentFrames(segs, k);
@@ -232,7 +234,7 @@ async function warpSegments(job: SegmentJob, signal: StopSignal, onFrames: (n: n
       const t = performance.now();
       for (; n < b; n++) {
         await read();
-        remap(src, map, { filter: job.filter, out });
+        remap(src, map, { filter: job.filter, out, areaPlan: areaPlanFor(src, map, job.filter, planScratch) });
         const wrote = await Promise.race([writeFlushed(sink, outBuf).catch(() => GONE), encoderGone, stopped]);
         if (wrote === STOPPED || signal.stopping) throw new Stopped();
         if (wrote === GONE) break;

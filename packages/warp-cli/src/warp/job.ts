@@ -1,5 +1,5 @@
 /** One frame's work, shared by the worker threads and the in-process path. */
-import { createImageLike, fixedBilinearApplies, prepareBilinear, remap, type ImageBuffer, type PreparedBilinear, type RemapFilter, type RemapMap } from '@skyfold/warp-core';
+import { createImageLike, fixedBilinearApplies, prepareArea, prepareBilinear, remap, type ImageBuffer, type PreparedArea, type PreparedBilinear, type RemapFilter, type RemapMap } from '@skyfold/warp-core';
 import { decodeImage, encodeImage, FrameError, type EncodeOptions } from '../io/image-codec.js';
 import { writeFileAtomic } from '../io/output-file.js';
 import { alphaUnused, fillAlpha } from './opaque.js';
@@ -24,7 +24,7 @@ export interface FrameJob {
 export type FrameOutcome = { id: number; ok: true; ms: number } | { id: number; ok: false; reason: string };
 
 /** Decodes, checks, warps, encodes and writes one frame (temporary file, then rename). */
-export async function runFrameJob(job: FrameJob, map: RemapMap, s: WarpSettings, scratch: { out?: ImageBuffer; prepared?: PreparedBilinear }): Promise<FrameOutcome> {
+export async function runFrameJob(job: FrameJob, map: RemapMap, s: WarpSettings, scratch: { out?: ImageBuffer; prepared?: PreparedBilinear; areaPlan?: PreparedArea }): Promise<FrameOutcome> {
   const t0 = performance.now();
   try {
     const src = await decodeImage(job.input, s.maxPixels);
@@ -35,7 +35,7 @@ export async function runFrameJob(job: FrameJob, map: RemapMap, s: WarpSettings,
     if (!out || out.channels !== src.channels || out.data.BYTES_PER_ELEMENT !== src.data.BYTES_PER_ELEMENT) {
       out = scratch.out = createImageLike(src, map.width, map.height);
     }
-    remap(src, map, { filter: s.filter, out, prepared: preparedFor(src, map, s.filter, scratch) });
+    remap(src, map, { filter: s.filter, out, prepared: preparedFor(src, map, s.filter, scratch), areaPlan: areaPlanFor(src, map, s.filter, scratch) });
     if (alphaUnused(src)) fillAlpha(out);
     writeFileAtomic(job.output, await encodeImage(out, { ...s.encode, format: job.format }), job.temp);
     return { id: job.id, ok: true, ms: performance.now() - t0 };
@@ -43,6 +43,17 @@ export async function runFrameJob(job: FrameJob, map: RemapMap, s: WarpSettings,
     const reason = e instanceof FrameError ? e.message : `failed: ${(e as Error)?.message?.split('\n')[0] ?? String(e)}`;
     return { id: job.id, ok: false, reason };
   }
+}
+
+/**
+ * The 'area' filter's footprints of `map` for sources like `src`, worked out once and kept in
+ * `scratch` (the same pixels as without them); undefined for other filters and channel counts.
+ */
+export function areaPlanFor(src: ImageBuffer, map: RemapMap, filter: RemapFilter, scratch: { areaPlan?: PreparedArea }): PreparedArea | undefined {
+  if (filter !== 'area' || (src.channels !== 3 && src.channels !== 4)) return undefined;
+  const p = scratch.areaPlan;
+  if (p && p.map === map && p.srcWidth === src.width && p.srcHeight === src.height) return p;
+  return (scratch.areaPlan = prepareArea(map, src.width, src.height));
 }
 
 /**

@@ -3,7 +3,7 @@
  * frames in the same layout on standard output, so skyfold can sit between two ffmpeg processes.
  */
 import { remap, type RemapFilter } from '@skyfold/warp-core';
-import { preparedFor } from './job.js';
+import { areaPlanFor, preparedFor } from './job.js';
 import { UserError } from '../errors.js';
 import { runContext } from '../io/run-context.js';
 import type { MapSettings, MapSource } from './map-source.js';
@@ -80,7 +80,7 @@ export async function runRawPipe(
   try {
     for await (const frame of rawFrames(streams.input, frameBytes)) {
       frame.copy(inAligned); // aligned copy: 16-bit samples are read in place (little-endian hosts)
-      remap(src, map, { filter, out, prepared: preparedFor(src, map, filter, scratch) });
+      remap(src, map, { filter, out, prepared: preparedFor(src, map, filter, scratch), areaPlan: areaPlanFor(src, map, filter, scratch) });
       try {
         await writeFlushed(streams.output, outBuf); // rejects with EPIPE when the reader left
       } catch (e) {

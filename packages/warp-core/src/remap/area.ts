@@ -546,3 +546,207 @@ function addN(s: Uint8Array | Uint16Array, W: number, H: number, C: number, x: n
     acc[ch] += wt * (w00 * s[ia + ch] + w10 * s[ib + ch] + w01 * s[ic + ch] + w11 * s[id + ch]);
   }
 }
+
+/**
+ * The 'area' filter's per-pixel footprints, worked out once per map instead of every frame: for
+ * each output pixel whether it lies in the source and whether the map magnifies there, its stage
+ * and blend, its probe count and, for pixels with more than one probe, the step along the major
+ * axis. The numbers are placeProbes()'s own, so a remap with the plan gives the same pixels as one
+ * without (tests/remap-area-plan.test.ts holds this). Independent of the gain.
+ */
+export interface PreparedArea {
+  readonly map: RemapMap;
+  readonly srcWidth: number;
+  readonly srcHeight: number;
+  readonly maxSamples: number;
+  /** 0: outside the source (black); 1: magnified (one bilinear sample); 2: one probe; 3: several. */
+  readonly kind: Uint8Array;
+  readonly stage: Uint8Array;
+  readonly count: Uint16Array;
+  readonly blend: Float64Array;
+  /** Steps (ex, ey) of the kind-3 pixels in raster order; rowFirst[j] is row j's first. */
+  readonly step: Float64Array;
+  readonly rowFirst: Int32Array;
+}
+
+/** Plans the 'area' filter's footprints of `map` for a srcWidth × srcHeight source (see PreparedArea). */
+export function planArea(map: RemapMap, srcWidth: number, srcHeight: number, maxSamples: number, top: number): PreparedArea {
+  const w = map.width;
+  const h = map.height;
+  const mx = map.x;
+  const my = map.y;
+  const kind = new Uint8Array(w * h);
+  const stage = new Uint8Array(w * h);
+  const count = new Uint16Array(w * h);
+  const blend = new Float64Array(w * h);
+  const rowFirst = new Int32Array(h + 1);
+  let steps: Float64Array = new Float64Array(1024);
+  let ns = 0;
+  for (let j = 0, k = 0; j < h; j++) {
+    rowFirst[j] = ns;
+    for (let i = 0; i < w; i++, k++) {
+      if (!inside(mx[k], my[k], srcWidth, srcHeight)) continue;
+      if (!placeProbes(mx, my, w, h, srcWidth, srcHeight, i, j, k, maxSamples, top)) {
+        kind[k] = 1;
+        continue;
+      }
+      const n = fp[FP_N];
+      stage[k] = fp[FP_K];
+      blend[k] = fp[FP_T];
+      count[k] = n;
+      kind[k] = n === 1 ? 2 : 3;
+      if (n === 1) continue;
+      if (2 * ns + 2 > steps.length) {
+        const grown = new Float64Array(steps.length * 2);
+        grown.set(steps);
+        steps = grown;
+      }
+      steps[2 * ns] = fp[FP_EX];
+      steps[2 * ns + 1] = fp[FP_EY];
+      ns++;
+    }
+  }
+  rowFirst[h] = ns;
+  return { map, srcWidth, srcHeight, maxSamples, kind, stage, count, blend, step: steps.slice(0, 2 * ns), rowFirst };
+}
+
+/** areaRowColour from a PreparedArea: the same samples, weights and sums, without the footprint arithmetic. */
+export function areaRowPlanned(lv: AreaLevels, plan: PreparedArea, map: RemapMap, out: ImageBuffer, j: number): boolean {
+  const src = lv.levels[0];
+  const C = src.channels;
+  const four = C === 4;
+  const o = out.data;
+  const s = src.data;
+  const W = src.width;
+  const H = src.height;
+  const mx = map.x;
+  const my = map.y;
+  const mg = map.gain;
+  const w = map.width;
+  const { kind, stage: stages, count, blend, step } = plan;
+  let e = 2 * plan.rowFirst[j];
+  let scaled = false;
+  let k = j * w;
+  let oi = k * C;
+  for (let i = 0; i < w; i++, k++, oi += C) {
+    const kk = kind[k];
+    const g = mg[k];
+    if (kk === 0 || !(g > 0)) {
+      if (kk === 3) e += 2;
+      o[oi] = 0;
+      o[oi + 1] = 0;
+      o[oi + 2] = 0;
+      if (four) o[oi + 3] = 0;
+      continue;
+    }
+    if (g !== 1) scaled = true;
+    const x = mx[k];
+    const y = my[k];
+    if (kk === 1) {
+      const sx = x - 0.5;
+      const sy = y - 0.5;
+      let x0 = ((sx + 1) | 0) - 1;
+      let y0 = ((sy + 1) | 0) - 1;
+      const fx = sx - x0;
+      const fy = sy - y0;
+      let dx: number = C;
+      let dy = W * C;
+      if (x0 < 0) {
+        x0 = 0;
+        dx = 0;
+      } else if (x0 >= W - 1) dx = 0;
+      if (y0 < 0) {
+        y0 = 0;
+        dy = 0;
+      } else if (y0 >= H - 1) dy = 0;
+      const ia = (y0 * W + x0) * C;
+      const ib = ia + dx;
+      const ic = ia + dy;
+      const id = ic + dx;
+      const w11 = fx * fy;
+      const w10 = fx - w11;
+      const w01 = fy - w11;
+      const w00 = 1 - fx - w01;
+      o[oi] = w00 * s[ia] + w10 * s[ib] + w01 * s[ic] + w11 * s[id] + 0.5;
+      o[oi + 1] = w00 * s[ia + 1] + w10 * s[ib + 1] + w01 * s[ic + 1] + w11 * s[id + 1] + 0.5;
+      o[oi + 2] = w00 * s[ia + 2] + w10 * s[ib + 2] + w01 * s[ic + 2] + w11 * s[id + 2] + 0.5;
+      if (four) o[oi + 3] = w00 * s[ia + 3] + w10 * s[ib + 3] + w01 * s[ic + 3] + w11 * s[id + 3] + 0.5;
+      continue;
+    }
+    const stage = stages[k];
+    const t = blend[k];
+    const n = count[k];
+    const L0 = stageImage(lv, stage);
+    const L1 = t > 0 ? stageImage(lv, stage + 1) : L0;
+    const sc0 = stage <= 1 ? 1 : SCALE[stage - 1];
+    const sc1 = stage === 0 ? 1 : SCALE[stage];
+    const sh0 = stage === 1 ? -0.5 : 0;
+    const sh1 = stage === 0 ? -0.5 : 0;
+    const w0 = (1 - t) / n;
+    const w1 = t / n;
+    let r0 = 0;
+    let r1 = 0;
+    let r2 = 0;
+    let r3 = 0;
+    let ex = 0;
+    let ey = 0;
+    let px0 = x;
+    let py0 = y;
+    if (kk === 3) {
+      ex = step[e];
+      ey = step[e + 1];
+      e += 2;
+      px0 = x - ex * (n - 1) * 0.5;
+      py0 = y - ey * (n - 1) * 0.5;
+    }
+    for (let pass = 0; pass < 2; pass++) {
+      const wt = pass === 0 ? w0 : w1;
+      if (wt === 0) continue;
+      const L = pass === 0 ? L0 : L1;
+      const ld = L.data;
+      const Wl = L.width;
+      const Hl = L.height;
+      const WlC = Wl * C;
+      const sc = pass === 0 ? sc0 : sc1;
+      const sh = pass === 0 ? sh0 : sh1;
+      let px = px0;
+      let py = py0;
+      for (let p = 0; p < n; p++, px += ex, py += ey) {
+        if (!(px >= 0 && px < W && py >= 0 && py < H)) continue;
+        const sx = px * sc + sh - 0.5;
+        const sy = py * sc + sh - 0.5;
+        let x0 = ((sx + 1) | 0) - 1;
+        let y0 = ((sy + 1) | 0) - 1;
+        const fx = sx - x0;
+        const fy = sy - y0;
+        let dx: number = C;
+        let dy = WlC;
+        if (x0 < 0) {
+          x0 = 0;
+          dx = 0;
+        } else if (x0 >= Wl - 1) dx = 0;
+        if (y0 < 0) {
+          y0 = 0;
+          dy = 0;
+        } else if (y0 >= Hl - 1) dy = 0;
+        const ia = y0 * WlC + x0 * C;
+        const ib = ia + dx;
+        const ic = ia + dy;
+        const id = ic + dx;
+        const w11 = fx * fy;
+        const w10 = fx - w11;
+        const w01 = fy - w11;
+        const w00 = 1 - fx - w01;
+        r0 += wt * (w00 * ld[ia] + w10 * ld[ib] + w01 * ld[ic] + w11 * ld[id]);
+        r1 += wt * (w00 * ld[ia + 1] + w10 * ld[ib + 1] + w01 * ld[ic + 1] + w11 * ld[id + 1]);
+        r2 += wt * (w00 * ld[ia + 2] + w10 * ld[ib + 2] + w01 * ld[ic + 2] + w11 * ld[id + 2]);
+        if (four) r3 += wt * (w00 * ld[ia + 3] + w10 * ld[ib + 3] + w01 * ld[ic + 3] + w11 * ld[id + 3]);
+      }
+    }
+    o[oi] = r0 + 0.5;
+    o[oi + 1] = r1 + 0.5;
+    o[oi + 2] = r2 + 0.5;
+    if (four) o[oi + 3] = r3 + 0.5;
+  }
+  return scaled;
+}
