@@ -7,5 +7,5 @@ export { DEMO_RIG, starterRigText } from './demo-rig.js';
 export type { BatchSummary } from './warp/summary.js';
 export { findVideoTools, tryVideoTools, type VideoTools } from './video/tools.js';
 export { firstOffGrid, probeVideo, type VideoInfo } from './video/probe.js';
-export { planSegments, segmentFrames, shardSegments, type SegmentPlan } from './video/segments.js';
+export { contiguousRuns, planSegments, segmentFrames, shardSegments, type SegmentPlan } from './video/segments.js';
 export { startLiveServer, type LiveServer, type LiveServerOptions } from './live/server.js';

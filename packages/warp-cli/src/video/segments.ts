@@ -137,3 +137,14 @@ export function concatList(plan: SegmentPlan, rate: Rational): string {
   }
   return text;
 }
+
+/** The segments to make as runs of consecutive ones: each run gets a decoder of its own, seeking to its start. */
+export function contiguousRuns(todo: readonly number[]): number[][] {
+  const runs: number[][] = [];
+  for (const k of todo) {
+    const last = runs[runs.length - 1];
+    if (last && last[last.length - 1] === k - 1) last.push(k);
+    else runs.push([k]);
+  }
+  return runs;
+}

@@ -12,7 +12,6 @@ import { UserError } from '../errors.js';
 import { runContext, setExitCode, writeErr } from '../io/run-context.js';
 import type { MapSettings, MapSource } from '../warp/map-source.js';
 import { Progress } from '../warp/progress.js';
-import { areaPlanFor } from '../warp/job.js';
 import { stopOnSignals, type StopSignal } from '../warp/stop-signal.js';
 import { hostTag, partialTag } from '../warp/output-folder.js';
 import { writeFileAtomic } from '../io/output-file.js';
@@ -21,7 +20,8 @@ import { warn } from '../messages.js';
 import { planCarry, type CarryPlan } from './carry.js';
 import { runToEnd, startChild as start, stopChild as stop, type RunningChild as Running } from './child.js';
 import { planEncode, scaleMatrixName, sourceMatrix, type EncodePlan, type VideoEncodeOptions } from './encode.js';
-import { concatList, DEFAULT_SEGMENT_SECONDS, openPartsFolder, planSegments, recordSegment, segmentFrames, segmentName, shardSegments, type PartsFolder, type SegmentPlan } from './segments.js';
+import { areaPlanFor } from '../warp/job.js';
+import { concatList, contiguousRuns, DEFAULT_SEGMENT_SECONDS, openPartsFolder, planSegments, recordSegment, segmentFrames, segmentName, shardSegments, type PartsFolder, type SegmentPlan } from './segments.js';
 import { FrameReader, rgbFrame, TruncatedFrame, writeFlushed } from './frame-stream.js';
 import { type VideoInfo } from './probe.js';
 import { formatRational } from './rational.js';
@@ -189,83 +189,90 @@ interface SegmentJob {
   progress: boolean;
 }
 
-/** One decoder from the first segment to make to the last, one encoder per segment; returns the frames warped. */
+/**
+ * One decoder for each run of consecutive segments to make (seeking to its first frame, so the finished
+ * segments between two runs are not decoded again), one encoder per segment; returns the frames warped.
+ */
 async function warpSegments(job: SegmentJob, signal: StopSignal, onFrames: (n: number) => void): Promise<number> {
   const { info, map, segs, todo } = job;
   if (todo.length === 0) return 0;
   const bps = job.pixFmt === 'rgb48le' ? 2 : 1;
   const { bytes: inBuf, image: src } = rgbFrame(info.width, info.height, bps);
   const { bytes: outBuf, image: out } = rgbFrame(map.width, map.height, bps);
-  const first = segmentFrames(segs, todo[0])[0];
-  const end = segmentFrames(segs, todo[todo.length - 1])[1];
   const stderr = runContext().stderr;
   const progress = new Progress(todo.reduce((s, k) => s + segmentFrames(segs, k)[1] - segmentFrames(segs, k)[0], 0), stderr, job.progress && Boolean(stderr.isTTY));
   const stopped = signal.stopped.then(() => STOPPED);
-  const decoder = start(job.tools.ffmpeg, decodeArgs(info, job.pixFmt, first), 'ignore');
+  let decoder: Running | undefined;
   let encoder: Running | undefined;
   let temp: string | undefined;
-  let n = first;
   let warped = 0;
-  const reader = new FrameReader(decoder.child.stdout!, inBuf.length);
-  /** Reads frame n into inBuf, failing the run on a decoder that stops early or reports damage. */
-  const read = async (): Promise<void> => {
-    const more = await Promise.race([reader.next(inBuf).catch((e: unknown) => (e instanceof TruncatedFrame ? false : Promise.reject(e))), stopped]);
-    if (more === STOPPED || signal.stopping) throw new Stopped();
-    // ffmpeg conceals a damaged packet and carries on; any error it reports fails the run instead
-    if (decoder.stderr.text) throw damaged(info, n, decoder.stderr.firstLine);
-    if (more !== true) {
-      const dcode = await decoder.exited;
-      if (decoder.stderr.text) throw damaged(info, n, decoder.stderr.firstLine);
-      if (dcode !== 0) throw sourceError(`${info.path}: decoding failed at frame ${n + 1} of ${info.frameCount}: ${decoder.stderr.firstLine || `exit ${dcode}`}`);
-      throw sourceError(`${info.path}: got ${n} of ${info.frameCount} frames: frames ${n + 1}-${info.frameCount} did not decode (a damaged stream?); nothing was written`);
-    }
-  };
   const planScratch = {};
   try {
-    for (const k of todo) {
-      const [a, b] = segmentFrames(segs, k);
-      for (; n < a; n++) await read(); // a segment finished earlier, between two to make
-      temp = join(job.parts.dir, `${segmentName(k)}${partialTag(hostTag())}tmp`);
-      encoder = start(job.tools.ffmpeg, segmentEncodeArgs(job, temp), 'pipe');
-      const sink = encoder.child.stdin!;
-      sink.on('error', () => {}); // a closed pipe is reported from the encoder's exit below
-      // the encoder may stop early (a full disk): every wait below also ends then
-      const encoderGone = encoder.exited.then(() => GONE);
-      const t = performance.now();
-      for (; n < b; n++) {
-        await read();
-        remap(src, map, { filter: job.filter, out, areaPlan: areaPlanFor(src, map, job.filter, planScratch) });
-        const wrote = await Promise.race([writeFlushed(sink, outBuf).catch(() => GONE), encoderGone, stopped]);
-        if (wrote === STOPPED || signal.stopping) throw new Stopped();
-        if (wrote === GONE) break;
-        onFrames(++warped);
-        progress.tick(String(n + 1), true);
+    for (const run of contiguousRuns(todo)) {
+      const first = segmentFrames(segs, run[0])[0];
+      const end = segmentFrames(segs, run[run.length - 1])[1];
+      const dec = start(job.tools.ffmpeg, decodeArgs(info, job.pixFmt, first), 'ignore');
+      decoder = dec;
+      let n = first;
+      const reader = new FrameReader(dec.child.stdout!, inBuf.length);
+      /** Reads frame n into inBuf, failing the run on a decoder that stops early or reports damage. */
+      const read = async (): Promise<void> => {
+        const more = await Promise.race([reader.next(inBuf).catch((e: unknown) => (e instanceof TruncatedFrame ? false : Promise.reject(e))), stopped]);
+        if (more === STOPPED || signal.stopping) throw new Stopped();
+        // ffmpeg conceals a damaged packet and carries on; any error it reports fails the run instead
+        if (dec.stderr.text) throw damaged(info, n, dec.stderr.firstLine);
+        if (more !== true) {
+          const dcode = await dec.exited;
+          if (dec.stderr.text) throw damaged(info, n, dec.stderr.firstLine);
+          if (dcode !== 0) throw sourceError(`${info.path}: decoding failed at frame ${n + 1} of ${info.frameCount}: ${dec.stderr.firstLine || `exit ${dcode}`}`);
+          throw sourceError(`${info.path}: got ${n} of ${info.frameCount} frames: frames ${n + 1}-${info.frameCount} did not decode (a damaged stream?); nothing was written`);
+        }
+      };
+      for (const k of run) {
+        const [a, b] = segmentFrames(segs, k);
+        temp = join(job.parts.dir, `${segmentName(k)}${partialTag(hostTag())}tmp`);
+        encoder = start(job.tools.ffmpeg, segmentEncodeArgs(job, temp), 'pipe');
+        const sink = encoder.child.stdin!;
+        sink.on('error', () => {}); // a closed pipe is reported from the encoder's exit below
+        // the encoder may stop early (a full disk): every wait below also ends then
+        const encoderGone = encoder.exited.then(() => GONE);
+        const t = performance.now();
+        for (; n < b; n++) {
+          await read();
+          remap(src, map, { filter: job.filter, out, areaPlan: areaPlanFor(src, map, job.filter, planScratch) });
+          const wrote = await Promise.race([writeFlushed(sink, outBuf).catch(() => GONE), encoderGone, stopped]);
+          if (wrote === STOPPED || signal.stopping) throw new Stopped();
+          if (wrote === GONE) break;
+          onFrames(++warped);
+          progress.tick(String(n + 1), true);
+        }
+        sink.end();
+        const ecode = await encoder.exited;
+        if (ecode !== 0 || n < b) throw new UserError(`${job.output}: ffmpeg could not write the video: ${encoder.stderr.firstLine || `exit ${ecode}`}`);
+        renameSync(temp, join(job.parts.dir, segmentName(k)));
+        temp = undefined;
+        encoder = undefined;
+        recordSegment(job.parts.dir, { segment: k, frames: b - a, seconds: (performance.now() - t) / 1000 });
       }
-      sink.end();
-      const ecode = await encoder.exited;
-      if (ecode !== 0 || n < b) throw new UserError(`${job.output}: ffmpeg could not write the video: ${encoder.stderr.firstLine || `exit ${ecode}`}`);
-      renameSync(temp, join(job.parts.dir, segmentName(k)));
-      temp = undefined;
-      encoder = undefined;
-      recordSegment(job.parts.dir, { segment: k, frames: b - a, seconds: (performance.now() - t) / 1000 });
+      if (end < info.frameCount) stop(dec);
+      else {
+        // the whole rest of the video was read: it must end here, cleanly
+        const extra = await Promise.race([reader.next(inBuf).catch(() => false), stopped]);
+        if (extra === STOPPED) throw new Stopped();
+        if (extra === true) throw sourceError(`${info.path}: got more than its ${info.frameCount} frames; nothing was written`);
+        const dcode = await dec.exited;
+        if (dec.stderr.text) throw damaged(info, n, dec.stderr.firstLine);
+        if (dcode !== 0) throw sourceError(`${info.path}: decoding failed at frame ${n + 1} of ${info.frameCount}: ${dec.stderr.firstLine || `exit ${dcode}`}`);
+      }
+      await dec.exited;
+      decoder = undefined;
     }
-    if (end < info.frameCount) stop(decoder);
-    else {
-      // the whole rest of the video was read: it must end here, cleanly
-      const extra = await Promise.race([reader.next(inBuf).catch(() => false), stopped]);
-      if (extra === STOPPED) throw new Stopped();
-      if (extra === true) throw sourceError(`${info.path}: got more than its ${info.frameCount} frames; nothing was written`);
-      const dcode = await decoder.exited;
-      if (decoder.stderr.text) throw damaged(info, n, decoder.stderr.firstLine);
-      if (dcode !== 0) throw sourceError(`${info.path}: decoding failed at frame ${n + 1} of ${info.frameCount}: ${decoder.stderr.firstLine || `exit ${dcode}`}`);
-    }
-    await decoder.exited;
     progress.finish();
     return warped;
   } catch (e) {
     stop(decoder);
     stop(encoder);
-    await Promise.all([decoder.exited, encoder?.exited]);
+    await Promise.all([decoder?.exited, encoder?.exited]);
     if (temp) rmSync(temp, { force: true });
     progress.finish();
     throw e;
