@@ -1,7 +1,7 @@
 /** Reads the triangle file a rig's `dome.mesh` names, relative to the rig file's folder. */
 import { readFileSync, statSync } from 'node:fs';
 import { dirname, isAbsolute, join } from 'node:path';
-import { MeshFileError, parseTriangleFile, type TriangleSoup } from '@skyfold/warp-core';
+import { MeshFileError, parseTriangleFile, shortQuote, type TriangleSoup } from '@skyfold/warp-core';
 import { UserError } from '../errors.js';
 
 /** Larger than any mesh of the bounded triangle count (2 million binary STL triangles are 100 MB). */
@@ -15,6 +15,8 @@ export function domeMeshPath(rigPath: string, file: string): string {
 /** Reads and parses the mesh; every failure is a one-line UserError naming the file (and line). */
 export function readDomeMesh(rigPath: string, file: string): TriangleSoup {
   const path = domeMeshPath(rigPath, file);
+  // a name longer than any file system allows is said short, never quoted whole (issue 10)
+  if (file.length > 255) throw new UserError(`${rigPath}: dome.mesh: ${shortQuote(file)} is ${file.length} characters long, too long for a file name`);
   let bytes: Buffer;
   try {
     const size = statSync(path).size;
