@@ -8,4 +8,5 @@ export type { BatchSummary } from './warp/summary.js';
 export { findVideoTools, tryVideoTools, type VideoTools } from './video/tools.js';
 export { firstOffGrid, probeVideo, type VideoInfo } from './video/probe.js';
 export { contiguousRuns, planSegments, segmentFrames, shardSegments, type SegmentPlan } from './video/segments.js';
+export { hdrTransferWarning } from './video/warp-video.js';
 export { startLiveServer, type LiveServer, type LiveServerOptions } from './live/server.js';

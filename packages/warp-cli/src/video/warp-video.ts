@@ -63,6 +63,20 @@ export function decodeArgs(info: VideoInfo, pixFmt: 'rgb24' | 'rgb48le', from = 
   return args;
 }
 
+/** The HDR transfers (ffprobe's names): their code values are not light through the sRGB curve. */
+const HDR_TRANSFERS: Record<string, string> = { smpte2084: 'PQ (SMPTE ST 2084)', 'arib-std-b67': 'HLG (ARIB STD-B67)' };
+
+/**
+ * A warning for an HDR source: the frames are warped and tagged as they came (the tags carried, 10-bit
+ * samples through RGB48), but the light per pixel (brightness compensation and the edge ramp) is applied
+ * through the sRGB transfer function (IEC 61966-2-1), which is not the source's curve.
+ */
+export function hdrTransferWarning(info: Pick<VideoInfo, 'path' | 'colour'>): string | undefined {
+  const name = info.colour.transfer && HDR_TRANSFERS[info.colour.transfer];
+  if (!name) return undefined;
+  return `${info.path}: an HDR video (transfer ${name}): its frames are warped and tagged as they are, but the brightness compensation and the edge ramp are computed through the sRGB curve, not ${name.split(' ')[0]}'s, so the light across the dome will be uneven; warp with --brightness 0, or make an SDR (BT.709) master first`;
+}
+
 class Stopped extends Error {}
 
 const STOPPED = Symbol('stopped');
@@ -100,6 +114,8 @@ export async function warpVideo(tools: VideoTools, source: MapSource, mapSetting
   for (const d of carry.dropped) warn(`${info.path}: left out ${d}`);
   if (!opts.shard) await checkCarried(tools, info, plan, carry, opts.output);
   const map = source.build([info.width, info.height], mapSettings);
+  const hdr = hdrTransferWarning(info);
+  if (hdr) warn(hdr);
   const segs = planSegments(info.frameCount, info.rate, opts.segmentSeconds ?? DEFAULT_SEGMENT_SECONDS);
   const src = statSync(info.path);
   const identity = JSON.stringify({
