@@ -16,11 +16,12 @@ import { join } from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import sharp from 'sharp';
 import { chromium, type Browser, type Page } from 'playwright-core';
-import type { ImageBuffer, WarpMesh } from '@skyfold/warp-core';
+import { bakeMesh, pixelMapFromMesh, remap, type ImageBuffer, type WarpMesh } from '@skyfold/warp-core';
 import { loadRig, readGlb } from '@skyfold/warp-cli';
 import { livePageAssets } from '../packages/warp-cli/dist/live/assets.js';
 import { rigForPage } from '../packages/warp-cli/dist/live/server.js';
 import { domeGrid } from '../packages/warp-cli/src/live/page/grid.js';
+import { QUANTITIES } from '../packages/warp-cli/src/live/page/nudge.js';
 import { DEMO_RIG, skyfold } from './support.js';
 
 const CHROMIUM = '/usr/bin/chromium';
@@ -230,5 +231,52 @@ describe.skipIf(!HAVE_CHROMIUM)('skyfold live: the page in headless Chromium', (
     expect(blurred.mean).toBeLessThan(2);
     expect(blurred.p99).toBeLessThan(8);
     expect(lightInDark).toBe(0);
+  });
+
+  it('a nudge of the aim moves the drawn grid as the nudged rig predicts, and undo brings it back', async (ctx) => {
+    if (!webgl) return ctx.skip();
+    const loaded = (await loadRig(DEMO_RIG)).rig;
+    const before = await readFrame(page);
+    const turn = QUANTITIES.findIndex((q) => q.id === 'aim-turn');
+    for (let i = 0; i < turn; i++) await page.keyboard.press(']');
+    await page.keyboard.press('ArrowRight');
+    await page.keyboard.press('ArrowRight');
+    const q = QUANTITIES[turn];
+    const expected = q.apply(q.apply(loaded, q.step), q.step);
+    const rig = await page.evaluate(() => window.skyfoldLive!.rig!());
+    for (let k = 0; k < 3; k++) expect(rig.projector.lookAt[k]).toBeCloseTo(expected.projector.lookAt[k], 12);
+    expect(rig.projector.position).toEqual(loaded.projector.position);
+    expect(await page.locator('#panel .change').allTextContents()).toEqual(['aim, turn +1.00°']);
+    const after = await readFrame(page);
+    const full = await page.evaluate(() => window.skyfoldLive!.state!.lastBake);
+    // a held key: the page bakes the coarse grid on every repeat, the full one when the key is let go
+    await page.keyboard.down('ArrowLeft');
+    await page.keyboard.down('ArrowLeft');
+    const held = await page.evaluate(() => window.skyfoldLive!.state!.lastBake);
+    await page.keyboard.up('ArrowLeft');
+    const released = await page.evaluate(() => window.skyfoldLive!.state!.lastBake);
+    console.log(`live page bake in headless Chromium (figures, not asserted): full ${full.cols} × ${full.rows} in ${full.ms.toFixed(0)} ms; key held: ${held.cols} × ${held.rows} in ${held.ms.toFixed(0)} ms`);
+    expect(held.coarse).toBe(true);
+    expect(released.coarse).toBe(false);
+    await page.keyboard.press('u');
+    await page.keyboard.press('u');
+    // the CPU's warp of the same grid through the nudged rig's mesh
+    const mesh = bakeMesh(expected).mesh;
+    const { width: W, height: H } = mesh;
+    const grid = domeGrid(2048, loaded.content.fov);
+    const cpu = remap(grid, pixelMapFromMesh(mesh, [grid.width, grid.height]), { filter: 'bilinear' });
+    const inside = erode(Uint8Array.from(cellState(mesh), (s) => (s === 1 ? 1 : 0)), W, H, 3);
+    const moved = compare(after, cpu, inside);
+    const blurred = compare(boxBlur(after, 4, W, H), { ...cpu, data: boxBlur(cpu.data, 3, W, H) }, inside, 3);
+    const stale = compare(boxBlur(before, 4, W, H), { ...cpu, data: boxBlur(cpu.data, 3, W, H) }, inside, 3);
+    console.log(`live page nudge (aim +1°): mean |page − nudged warp| ${moved.mean.toFixed(3)}, blurred p99 ${blurred.p99}; the frame before the nudge against it: mean ${stale.mean.toFixed(3)}, p99 ${stale.p99}`);
+    expect(moved.mean).toBeLessThan(2);
+    expect(blurred.p99).toBeLessThan(8);
+    expect(stale.p99).toBeGreaterThan(blurred.p99 + 8); // the picture did move
+    await page.keyboard.press('u');
+    await page.keyboard.press('u');
+    const back = await page.evaluate(() => window.skyfoldLive!.rig!());
+    expect(back.projector.lookAt).toEqual(loaded.projector.lookAt);
+    expect(await page.locator('#panel .change').count()).toBe(0);
   });
 });
