@@ -22,7 +22,7 @@ import { livePageAssets } from '../packages/warp-cli/dist/live/assets.js';
 import { rigForPage } from '../packages/warp-cli/dist/live/server.js';
 import { domeGrid } from '../packages/warp-cli/src/live/page/grid.js';
 import { QUANTITIES } from '../packages/warp-cli/src/live/page/nudge.js';
-import { DEMO_RIG, skyfold } from './support.js';
+import { DEMO_RIG, ROOT, skyfold } from './support.js';
 
 const CHROMIUM = '/usr/bin/chromium';
 const HAVE_CHROMIUM = existsSync(CHROMIUM);
@@ -190,6 +190,8 @@ describe.skipIf(!HAVE_CHROMIUM)('skyfold live: the page in headless Chromium', (
     if (!webgl) return ctx.skip();
     expect(await page.evaluate(() => window.skyfoldLive?.error)).toBeUndefined();
     expect(problems).toEqual([]);
+    // the README's picture of the page on the demo rig (docs/live.png), taken by this run
+    await page.screenshot({ path: join(ROOT, 'docs', 'live.png') });
     const first = await page.evaluate(() => window.skyfoldLive!.frames!());
     await page.waitForFunction((n) => window.skyfoldLive!.frames!() > n + 2, first, { timeout: 30_000 });
   });
