@@ -251,7 +251,7 @@ async function handle(s: ServerState, hosts: ReadonlySet<string>, req: IncomingM
   };
   if (url.pathname === '/' || url.pathname === '/app.js') {
     if (!get) return only('GET');
-    const assets = await livePageAssets();
+    const assets = await livePageAssets(s.token);
     if (url.pathname === '/') send(res, 200, assets.html, 'text/html; charset=utf-8', PAGE_HEADERS);
     else send(res, 200, assets.js, 'text/javascript; charset=utf-8');
     return;
