@@ -44,7 +44,7 @@ export { classifyHit } from './analysis/sample.js';
 export { Sorted } from './analysis/stats.js';
 export { OBJECTIVE_WEIGHTS, PLAN_DEFAULTS, PLAN_MEASURES, PLAN_OBJECTIVES, dominates, planRig, type PlanMeasure, type PlanCandidate, type PlanObjective, type PlanResult } from './placement/plan.js';
 export { describeMoves, MOVE_RESOLUTION, type MoveStep } from './placement/moves.js';
-export { SWEEP_DEFAULTS, sweepPlacement, sweepPoint, type PlacementSweep, type SweepOptions, type SweepPoint } from './placement/sweep.js';
+export { mirrorHeightSpan, SWEEP_DEFAULTS, sweepPlacement, sweepPoint, type MirrorHeightSpan, type MirrorHeightSweep, type PlacementSweep, type SweepGrid, type SweepOptions, type SweepPoint } from './placement/sweep.js';
 export { EDGE_SHARE, OPEN_ROOM, ROOM_DEFAULTS, resolveRoom, type Room } from './placement/room.js';
 
 export { DOME_PATTERN_DEFAULTS, drawDomePattern, type PatternDot } from './pattern/dome-master.js';

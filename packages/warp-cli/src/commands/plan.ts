@@ -196,7 +196,7 @@ export function registerPlan(program: Command): void {
       }
       let sweepFile: string | null = null;
       if (opts.sweep) {
-        const sweep = sweepPlacement(rig, { objective: result.objective }, result.room);
+        const sweep = sweepPlacement(rig, { objective: result.objective, vary: result.vary }, result.room);
         const mark = best ? { point: sweepPoint(best.rig, result.room), label: 'candidate #1 (its distance and height; it may also move sideways or move the mirror)' } : null;
         try {
           writeFileAtomic(opts.sweep, await svgToPng(drawPlacementSweep(sweep, rig.units, { best: mark }).svg));

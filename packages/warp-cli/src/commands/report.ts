@@ -61,7 +61,7 @@ export function registerReport(program: Command): void {
         ['frame.png', pics.frame, 'What each projector pixel lights', 'The projector frame as the projector shows it, coloured by where each pixel’s light goes, with altitude on the dome every 15°.'],
         ['resolution.png', pics.resolution, 'Resolution on the dome', 'Arcminutes per projector pixel in the dome master’s orientation (front at the bottom); lighter is sharper; hatched grey is not lit.'],
         ['brightness.png', pics.brightness, 'Brightness before compensation', 'Relative brightness of the lit dome before the warp mesh evens it out; 1 = brightest.'],
-        ['placement-sweep.png', drawPlacementSweep(sweepPlacement(rig), rig.units), 'Where the projector could stand', 'Coverage, resolution and lit share with the projector moved toward or away from the mirror and up or down, the mirror and the aim as now (the planner\'s scoring and room; `skyfold plan` searches further). Ringed: the current placement; crossed: the best cell.'],
+        ['placement-sweep.png', drawPlacementSweep(sweepPlacement(rig), rig.units), 'Where the projector could stand', 'Coverage, resolution and lit share with the projector moved toward or away from the mirror and up or down, the mirror and the aim as now, and where the room frees the mirror\'s height a second row over that height (the planner\'s scoring and room; `skyfold plan` searches further). Ringed: the current placement; crossed: the best cell.'],
       ];
       const files: string[] = [];
       const htmlPics: HtmlPicture[] = [];
