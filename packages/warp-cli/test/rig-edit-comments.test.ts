@@ -3,17 +3,15 @@
  * when a value gets longer: a column of aligned comments moves as one and stays a column.
  */
 import { describe, expect, it } from 'vitest';
-import { parse, parseDocument } from 'yaml';
+import { parse } from 'yaml';
 import { rigFromDocument, type Rig } from '@skyfold/warp-core';
-import { editRigDocument, keepCommentColumns } from '../src/io/rig-edit.js';
+import { editedRigText } from '../src/io/rig-edit.js';
 
 function edit(text: string, change: (r: Rig) => void): { out: string; after: Rig; back: Rig } {
   const before = rigFromDocument(parse(text));
   const after = structuredClone(before);
   change(after);
-  const doc = parseDocument(text);
-  editRigDocument(doc, before, after);
-  const out = keepCommentColumns(text, doc.toString({ lineWidth: 0, flowCollectionPadding: false }));
+  const out = editedRigText(text, before, after);
   return { out, after, back: rigFromDocument(parse(out)) };
 }
 

@@ -3,17 +3,15 @@
  * given by a cap deeper than a hemisphere: the document keeps the form the user wrote.
  */
 import { describe, expect, it } from 'vitest';
-import { parse, parseDocument } from 'yaml';
+import { parse } from 'yaml';
 import { mirrorPole, rigFromDocument, type Rig } from '@skyfold/warp-core';
-import { editRigDocument, keepCommentColumns } from '../src/io/rig-edit.js';
+import { editedRigText } from '../src/io/rig-edit.js';
 
 function edit(text: string, change: (r: Rig) => void): { out: string; after: Rig; back: Rig } {
   const before = rigFromDocument(parse(text));
   const after = structuredClone(before);
   change(after);
-  const doc = parseDocument(text);
-  editRigDocument(doc, before, after);
-  const out = keepCommentColumns(text, doc.toString({ lineWidth: 0, flowCollectionPadding: false }));
+  const out = editedRigText(text, before, after);
   return { out, after, back: rigFromDocument(parse(out)) };
 }
 

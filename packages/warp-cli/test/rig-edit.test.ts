@@ -5,10 +5,10 @@
 import { readFileSync } from 'node:fs';
 import { fileURLToPath } from 'node:url';
 import { describe, expect, it } from 'vitest';
-import { parse, parseDocument } from 'yaml';
+import { parse } from 'yaml';
 import { fitRig, measurementsFromDocument, rigFromDocument, type Rig } from '@skyfold/warp-core';
 import { fittedRigText } from '../src/commands/fit.js';
-import { editRigDocument, keepCommentColumns } from '../src/io/rig-edit.js';
+import { editedRigText } from '../src/io/rig-edit.js';
 
 const fixture = (name: string) => fileURLToPath(new URL(`../../../fixtures/${name}`, import.meta.url));
 const IN = 0.0254;
@@ -18,9 +18,7 @@ function edit(text: string, change: (r: Rig) => void): { out: string; before: Ri
   const before = rigFromDocument(parse(text));
   const after = structuredClone(before);
   change(after);
-  const doc = parseDocument(text);
-  editRigDocument(doc, before, after);
-  const out = keepCommentColumns(text, doc.toString({ lineWidth: 0, flowCollectionPadding: false }));
+  const out = editedRigText(text, before, after);
   return { out, before, after, back: rigFromDocument(parse(out)) };
 }
 

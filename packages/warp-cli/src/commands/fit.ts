@@ -23,7 +23,7 @@ import {
   type Rig,
 } from '@skyfold/warp-core';
 import { loadRig, readDocumentFile } from '../io/document-file.js';
-import { editRigDocument, keepCommentColumns, rigDocumentText } from '../io/rig-edit.js';
+import { editedRigText, rigDocumentText } from '../io/rig-edit.js';
 import { refuseToOverwrite, writeOutputFile } from '../io/output-file.js';
 import { UserError } from '../errors.js';
 import { fixed, printJson, table } from '../format.js';
@@ -128,27 +128,26 @@ function summaryLine(s: FitResult['after'], units: LengthUnit): string {
  * added saying what was fitted and how well.
  */
 export function fittedRigText(result: FitResult, before: Rig, rigText: string, rigPath: string, measurementsPath: string, units: LengthUnit): string {
-  const doc = parseDocument(rigText);
-  const edit = editRigDocument(doc, before, result.rig);
-  const lines = [
-    ` Fitted by \`skyfold fit\` from ${rigPath} and ${measurementsPath}.`,
-    ` Solved: ${result.free.join(', ')}; everything else is as in ${rigPath}.`,
-    ` ${result.equations} equations, ${result.unknowns} unknowns; ${result.converged ? 'converged' : 'did NOT converge'} after ${result.iterations} iterations.`,
-    ` Misfit before: ${summaryLine(result.before, units)}.`,
-    ` Misfit after:  ${summaryLine(result.after, units)}.`,
-  ];
-  if (result.worst) lines.push(` Worst item: ${result.worst.field} (${result.worst.label}), ${fixed(Math.abs(result.worst.normalized), 2)} sigma.`);
-  for (const w of result.warnings) lines.push(` Warning: ${wordNotice(w, before.units)}.`);
-  lines.push(' Standard errors (one sigma) are above each fitted value.');
-  doc.commentBefore = [...lines, ...(doc.commentBefore ? ['', doc.commentBefore] : [])].join('\n');
-  const ru = before.units;
-  for (const p of result.parameters) {
-    let note = ` fitted, ± ${showQuantity(p, p.stderr, ru, true)}`;
-    if (p.name === 'projector.lookAt' && p.aimStderr) note += ` (aim ± ${p.aimStderr.map((s) => (s === null ? 'undetermined' : `${fixed(s * RAD, 3)}°`)).join(', ')})`;
-    note += `; was ${showQuantity(p, p.initial, ru)}`;
-    noteAbove(doc, edit.written.get(p.name) ?? p.name.split('.'), note);
-  }
-  return keepCommentColumns(rigText, doc.toString({ lineWidth: 0, flowCollectionPadding: false }));
+  return editedRigText(rigText, before, result.rig, (doc, edit) => {
+    const lines = [
+      ` Fitted by \`skyfold fit\` from ${rigPath} and ${measurementsPath}.`,
+      ` Solved: ${result.free.join(', ')}; everything else is as in ${rigPath}.`,
+      ` ${result.equations} equations, ${result.unknowns} unknowns; ${result.converged ? 'converged' : 'did NOT converge'} after ${result.iterations} iterations.`,
+      ` Misfit before: ${summaryLine(result.before, units)}.`,
+      ` Misfit after:  ${summaryLine(result.after, units)}.`,
+    ];
+    if (result.worst) lines.push(` Worst item: ${result.worst.field} (${result.worst.label}), ${fixed(Math.abs(result.worst.normalized), 2)} sigma.`);
+    for (const w of result.warnings) lines.push(` Warning: ${wordNotice(w, before.units)}.`);
+    lines.push(' Standard errors (one sigma) are above each fitted value.');
+    doc.commentBefore = [...lines, ...(doc.commentBefore ? ['', doc.commentBefore] : [])].join('\n');
+    const ru = before.units;
+    for (const p of result.parameters) {
+      let note = ` fitted, ± ${showQuantity(p, p.stderr, ru, true)}`;
+      if (p.name === 'projector.lookAt' && p.aimStderr) note += ` (aim ± ${p.aimStderr.map((s) => (s === null ? 'undetermined' : `${fixed(s * RAD, 3)}°`)).join(', ')})`;
+      note += `; was ${showQuantity(p, p.initial, ru)}`;
+      noteAbove(doc, edit.written.get(p.name) ?? p.name.split('.'), note);
+    }
+  });
 }
 
 /** A comment line above the key that holds `path` (for a component of a point, above the point's key). */

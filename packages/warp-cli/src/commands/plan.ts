@@ -1,10 +1,9 @@
 /** `skyfold plan`: searches mirror and projector placements and writes the best as a rig file. */
 import { basename, dirname, extname, join } from 'node:path';
 import { Option, type Command } from 'commander';
-import { parseDocument } from 'yaml';
 import { formatLength, parseLengthString, sweepPlacement, sweepPoint, type MoveStep, toMetres, type LengthUnit, type RoomModel, PLAN_DEFAULTS, PLAN_OBJECTIVES, planRig, RigError, rigToDocument, type PlanCandidate, type PlanObjective, type PlanResult, type Rig } from '@skyfold/warp-core';
 import { readRig } from '../io/document-file.js';
-import { editRigDocument, keepCommentColumns, rigDocumentText } from '../io/rig-edit.js';
+import { editedRigText, rigDocumentText } from '../io/rig-edit.js';
 import { writeFileAtomic, writeOutputFile } from '../io/output-file.js';
 import { drawPlacementSweep } from '../pictures/placement-sweep.js';
 import { svgToPng } from '../pictures/render.js';
@@ -138,15 +137,14 @@ export function planSummary(p: PlanResult, units: Parameters<typeof formatLength
  */
 export function plannedRigText(result: PlanResult, before: Rig, rigText: string, rigPath: string): string {
   const best = result.best[0];
-  const doc = parseDocument(rigText);
-  editRigDocument(doc, before, best.rig);
   const header = [
     ` Placement found by skyfold ${VERSION} plan (objective ${result.objective}, seed ${result.seed}, ${result.evaluations} evaluations)`,
     ` from ${rigPath}; varied: ${Object.keys(best.values).join(', ')}.`,
     ' Check it with `skyfold report` before moving anything; measure the real placement and refine with `skyfold fit`.',
   ];
-  doc.commentBefore = [...header, ...(doc.commentBefore ? ['', doc.commentBefore] : [])].join('\n');
-  return keepCommentColumns(rigText, doc.toString({ lineWidth: 0, flowCollectionPadding: false }));
+  return editedRigText(rigText, before, best.rig, (doc) => {
+    doc.commentBefore = [...header, ...(doc.commentBefore ? ['', doc.commentBefore] : [])].join('\n');
+  });
 }
 
 export function registerPlan(program: Command): void {

@@ -5,7 +5,7 @@
  * diameter, a cap stays a cap, a string with units ("5 ft 3 in") stays a string in the document's
  * units, a bare number stays a bare number in the document's units.
  */
-import { isScalar, isSeq, stringify, type Document, type Scalar } from 'yaml';
+import { isScalar, isSeq, parseDocument, stringify, type Document, type Scalar } from 'yaml';
 import { readTextFile } from './document-file.js';
 import { formatLength, fromMetres, mirrorPole, parseLengthString, RAD, rigToDocument, toMetres, type LengthUnit, type Rig } from '@skyfold/warp-core';
 
@@ -302,6 +302,18 @@ export function keepCommentColumns(original: string, edited: string): string {
       return `${head.padEnd(column)}${text.slice(line.column)}`;
     })
     .join('\n');
+}
+
+/**
+ * The user's rig text (`before` was read from it) with every value in which `after` differs written in
+ * the form the user wrote it; `annotate` may add comments to the document first; trailing comments keep
+ * their columns. The one way fit, plan and the live page's save write a rig back.
+ */
+export function editedRigText(rigText: string, before: Rig, after: Rig, annotate?: (doc: ReturnType<typeof parseDocument>, edit: RigDocumentEditor) => void): string {
+  const doc = parseDocument(rigText);
+  const edit = editRigDocument(doc, before, after);
+  annotate?.(doc, edit);
+  return keepCommentColumns(rigText, doc.toString({ lineWidth: 0, flowCollectionPadding: false }));
 }
 
 /** The text of the rig document to edit: the user's own file, or for a rig read from a .glb (which has no text of its own) the rig written afresh. */

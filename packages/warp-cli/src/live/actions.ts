@@ -6,14 +6,13 @@
  */
 import { existsSync } from 'node:fs';
 import { basename, extname, join } from 'node:path';
-import { parseDocument } from 'yaml';
 import { ADAPTIVE_DEFAULTS, BAKE_DEFAULTS, rigFromDocument, RigError, validateRigGeometry, type Rig } from '@skyfold/warp-core';
 import { UserError } from '../errors.js';
 import { bakeToFiles } from '../commands/bake.js';
 import { MESH_FORMATS, type MeshFormat } from '../export/index.js';
 import { parseDocumentText, type LoadedRig } from '../io/document-file.js';
 import { readDomeMesh } from '../io/dome-mesh-file.js';
-import { editRigDocument, keepCommentColumns } from '../io/rig-edit.js';
+import { editedRigText } from '../io/rig-edit.js';
 import { writeFileAtomic } from '../io/output-file.js';
 
 /** A request that cannot be served: its status and a one-line reason (sent as `{ error }`). */
@@ -137,9 +136,7 @@ function refuseExisting(path: string, overwrite: boolean): void {
 
 /** The edited document's text: the user's own with only the changed values changed (rig-edit.ts). */
 export function savedRigText(rigText: string, before: Rig, after: Rig): string {
-  const doc = parseDocument(rigText);
-  editRigDocument(doc, before, after);
-  return keepCommentColumns(rigText, doc.toString({ lineWidth: 0, flowCollectionPadding: false }));
+  return editedRigText(rigText, before, after);
 }
 
 export function liveActions(c: ActionContext): LiveActions {
